@@ -1,0 +1,1 @@
+"""timespec: timing requirements solved into standard-value parts."""

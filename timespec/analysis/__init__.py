@@ -1,0 +1,64 @@
+"""Circuit-independent analysis engine: worst case, RSS and Monte Carlo.
+
+A circuit family describes its varying inputs as :class:`Factor` objects and gives a
+vectorised ``evaluate(inputs) -> outputs`` function (factor name → sample array, to
+output name → result array).  The engines here take nothing else, work in SI floats and
+numpy arrays, and never import a higher layer.
+"""
+
+from timespec.analysis.factors import (
+    Distribution,
+    Evaluate,
+    Factor,
+    FloatArray,
+    call_evaluate,
+    check_factors,
+    is_varying,
+    nominal_inputs,
+)
+from timespec.analysis.montecarlo import PERCENTILES, MonteCarloResult, OutputStats, monte_carlo
+from timespec.analysis.rss import (
+    Contribution,
+    RssResult,
+    grouped_shares,
+    rss,
+    standard_uncertainty,
+)
+from timespec.analysis.stats import (
+    cpk,
+    normal_cdf,
+    normal_pdf,
+    normal_quantile,
+    truncated_normal_std,
+    wilson_interval,
+)
+from timespec.analysis.worstcase import Extremes, corner_label, worst_case
+
+__all__ = [
+    "PERCENTILES",
+    "Contribution",
+    "Distribution",
+    "Evaluate",
+    "Extremes",
+    "Factor",
+    "FloatArray",
+    "MonteCarloResult",
+    "OutputStats",
+    "RssResult",
+    "call_evaluate",
+    "check_factors",
+    "corner_label",
+    "cpk",
+    "grouped_shares",
+    "is_varying",
+    "monte_carlo",
+    "nominal_inputs",
+    "normal_cdf",
+    "normal_pdf",
+    "normal_quantile",
+    "rss",
+    "standard_uncertainty",
+    "truncated_normal_std",
+    "wilson_interval",
+    "worst_case",
+]

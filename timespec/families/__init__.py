@@ -1,0 +1,39 @@
+"""Circuit families: one module per kind of block.
+
+Each family states its own physics (through :mod:`timespec.physics`), its
+candidate narrowing and its design rules; :mod:`timespec.families.base` holds
+what they share.  :func:`family` looks one up by block kind.
+"""
+
+from __future__ import annotations
+
+from timespec.families.base import Family
+from timespec.families.oneshot import OneShot
+
+__all__ = ["FAMILIES", "family"]
+
+#: Family objects by block kind.
+FAMILIES: dict[str, Family] = {
+    "oneshot": OneShot(),
+}
+
+
+def family(kind: str) -> Family:
+    """Return the family that handles a block kind.
+
+    Parameters
+    ----------
+    kind
+        Block kind, e.g. ``"oneshot"``.
+
+    Returns
+    -------
+    Family
+        The family.
+
+    Raises
+    ------
+    KeyError
+        When no family handles the kind (yet).
+    """
+    return FAMILIES[kind]

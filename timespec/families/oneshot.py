@@ -1,0 +1,311 @@
+"""The ``oneshot`` family: a 555-type monostable.
+
+Parts: ``R`` (timing resistor from the supply to the capacitor) and ``C``.
+Output: ``width``, the output pulse width.
+
+Second-order effects modelled (see :mod:`timespec.physics.monostable`): the
+timer class's threshold-ratio band (from its guaranteed timing error), the
+discharge transistor's on-resistance (the capacitor starts slightly above
+0 V), the threshold input current and node leakage (a drain on the charging
+current), the class's timing drift with temperature and supply, a forced
+control voltage, part tolerance, tempco or dielectric drift, and ageing.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+
+import numpy as np
+
+from timespec.analysis import Factor
+from timespec.families.base import (
+    Design,
+    Evaluate,
+    Finding,
+    FloatArray,
+    Inputs,
+    Output,
+    apply_part,
+    candidate_values,
+    capacitor_part,
+    condition_factors,
+    dielectric_findings,
+    drain_current,
+    part_factors,
+    resistor_part,
+    scaled_time,
+    snap,
+    supply_nominal_factor,
+    target,
+    timer_factors,
+)
+from timespec.model import Block
+from timespec.physics import monostable
+from timespec.rkm import format_rkm
+
+__all__ = ["OneShot"]
+
+
+def _seconds(t: float) -> str:
+    if t >= 1.0:
+        return f"{t:.4g} s"
+    if t >= 1e-3:
+        return f"{t * 1e3:.4g} ms"
+    return f"{t * 1e6:.4g} µs"
+
+
+class OneShot:
+    """555-type monostable family."""
+
+    kind = "oneshot"
+
+    def outputs(self, block: Block) -> tuple[Output, ...]:
+        """Outputs: the pulse width.
+
+        Parameters
+        ----------
+        block
+            The block.
+
+        Returns
+        -------
+        tuple of Output
+            ``width``.
+        """
+        return (Output("width", "time", "pulse width"),)
+
+    # -- model --------------------------------------------------------------
+    def factors(self, block: Block, design: Design) -> list[Factor]:
+        """Varying inputs of a design.
+
+        Parameters
+        ----------
+        block
+            The block.
+        design
+            Parts ``R`` and ``C``.
+
+        Returns
+        -------
+        list of Factor
+            Parts, conditions, timer class, leakage and (when forced) the control voltage.
+        """
+        out: list[Factor] = []
+        for part in design.parts:
+            out.extend(part_factors(block, part))
+        out.extend(condition_factors(block))
+        out.append(supply_nominal_factor(block))
+        out.extend(timer_factors(block, leakage=block.number("leakage") or 0.0))
+        control = block.window("control")
+        if control is not None:
+            out.append(
+                Factor("control", f"control voltage ({control.low:g}…{control.high:g} V)",
+                       control.centre, control.low, control.high, group="operating")
+            )
+        return out
+
+    def evaluate(self, block: Block, variant: str) -> Evaluate:
+        """The vectorised model.
+
+        Parameters
+        ----------
+        block
+            The block.
+        variant
+            Unused (one circuit).
+
+        Returns
+        -------
+        Evaluate
+            Samples → ``{"width": ...}``.
+        """
+        forced = block.window("control") is not None
+
+        def evaluate(x: Inputs) -> dict[str, FloatArray]:
+            r = apply_part(x, "R")
+            c = apply_part(x, "C")
+            v = x["supply"]
+            i = drain_current(x)
+            if forced:
+                w = monostable.width_control(r, c, v, x["control"], x["timer.ron"], i)
+            else:
+                w = monostable.width(r, c, v, x["timer.ratio"], x["timer.ron"], i)
+            return {"width": scaled_time(x, w)}
+
+        return evaluate
+
+    # -- solver -------------------------------------------------------------
+    def candidates(self, block: Block) -> list[Design]:
+        """Candidate (R, C) pairs: for each capacitor, the continuous R, snapped.
+
+        Parameters
+        ----------
+        block
+            The block.
+
+        Returns
+        -------
+        list of Design
+            Candidates; pinned parts are kept as given.
+
+        Notes
+        -----
+        For each allowed capacitor the resistor that puts the nominal width on
+        target is found in closed form from ``t = R·C·ln(...)`` and refined once
+        with the full nominal model (drain and on-resistance), then both
+        standard neighbours are kept.  If R is pinned, the same is done for C.
+        """
+        req = block.requirement("width")
+        assert req is not None
+        goal = target(req.window)
+        rp, cp = block.resistors, block.capacitors
+        pin_r, pin_c = block.pinned_part("R"), block.pinned_part("C")
+        if pin_r is not None and pin_c is not None:
+            return [Design((resistor_part("R", 0, rp, pin_r), capacitor_part("C", 0, cp, pin_c)))]
+        model = self.evaluate(block, "")
+        probe = Design((resistor_part("R", 1.0, rp), capacitor_part("C", 1.0, cp)))
+        nominal = {f.name: np.array([f.nominal]) for f in self.factors(block, probe)}
+
+        def width_for(r: FloatArray, c: FloatArray) -> FloatArray:
+            x = dict(nominal)
+            x["R.value"] = np.asarray(r, dtype=np.float64)
+            x["C.value"] = np.asarray(c, dtype=np.float64)
+            n = max(x["R.value"].size, x["C.value"].size)
+            x = {k: np.broadcast_to(v, (n,)) for k, v in x.items()}
+            return model(x)["width"]
+
+        designs: list[Design] = []
+        if pin_c is not None:
+            c = np.array([pin_c.value])
+            r = _refine(lambda rr: width_for(rr, np.broadcast_to(c, rr.shape)), goal, goal / (c * np.log(3.0)))
+            for val in _both(snap(rp.series, r, rp.low, rp.high)):
+                designs.append(Design((resistor_part("R", val, rp), capacitor_part("C", 0, cp, pin_c))))
+            return designs
+        if pin_r is not None:
+            r_fixed = np.array([pin_r.value])
+            c = _refine(
+                lambda cc: width_for(np.broadcast_to(r_fixed, cc.shape), cc), goal,
+                goal / (r_fixed * np.log(3.0)),
+            )
+            for val in _both(snap(cp.series, c, cp.low, cp.high)):
+                designs.append(Design((resistor_part("R", 0, rp, pin_r), capacitor_part("C", val, cp))))
+            return designs
+        cs = candidate_values(cp.series, cp.low, cp.high)
+        if cs.size == 0:
+            return []
+        r0 = goal / (cs * np.log(3.0))
+        r = _refine(lambda rr: width_for(rr, cs), goal, r0)
+        below, above = snap(rp.series, r, rp.low, rp.high)
+        for cval, rb, ra in zip(cs, below, above, strict=True):
+            for rv in {float(rb), float(ra)}:
+                if np.isfinite(rv):
+                    designs.append(
+                        Design((resistor_part("R", rv, rp), capacitor_part("C", float(cval), cp)))
+                    )
+        return designs
+
+    # -- rules --------------------------------------------------------------
+    def findings(
+        self, block: Block, design: Design, extremes: Mapping[str, tuple[float, float]]
+    ) -> list[Finding]:
+        """Design rules of a one-shot.
+
+        Parameters
+        ----------
+        block
+            The block.
+        design
+            The design.
+        extremes
+            Worst-case ``(low, high)`` of each output.
+
+        Returns
+        -------
+        list of Finding
+            Trigger length against the shortest pulse, trigger spacing against
+            the longest pulse plus recovery, resistor range and drain, dielectric.
+        """
+        out: list[Finding] = []
+        lo, hi = extremes["width"]
+        r = design.part("R")
+        c = design.part("C")
+        timer = block.timer
+        assert timer is not None
+        trig = block.number("trigger")
+        if trig is not None and trig >= lo:
+            out.append(
+                Finding(
+                    "error",
+                    "trigger-outlasts-pulse",
+                    f"the trigger is held low for {_seconds(trig)} but the pulse can be as short "
+                    f"as {_seconds(lo)}: the output stays high until the trigger returns. "
+                    "Shorten the trigger (an RC differentiator on the trigger input) or lengthen the pulse.",
+                )
+            )
+        spacing = block.number("spacing")
+        if spacing is not None:
+            recovery = float(
+                monostable.recovery_time(c.value * (1 + c.tolerance), timer.r_on_max,
+                                         block.conditions.supply.high, 2.0 / 3.0)
+            )
+            if spacing < hi + recovery:
+                out.append(
+                    Finding(
+                        "error",
+                        "retrigger-before-recovery",
+                        f"triggers may come {_seconds(spacing)} apart but the pulse can last "
+                        f"{_seconds(hi)} plus {_seconds(recovery)} to discharge the capacitor: "
+                        "a trigger would be missed or the next pulse shortened.",
+                    )
+                )
+        if r.value < timer.r_min:
+            out.append(
+                Finding(
+                    "warning",
+                    "resistor-too-small",
+                    f"R = {format_rkm(r.value, 'resistance')}Ω is below {format_rkm(timer.r_min, 'resistance')}Ω: "
+                    "the discharge transistor and supply carry needless current.",
+                )
+            )
+        drain = timer.i_threshold_max + (block.number("leakage") or 0.0)
+        v = block.conditions.supply.low
+        rmax = float(monostable.max_drain_resistance(v, timer.ratio_band[1], drain))
+        if r.value * (1 + r.tolerance) >= rmax:
+            out.append(
+                Finding(
+                    "error",
+                    "drain-stalls-charge",
+                    f"with {drain:.3g} A drawn from the timing node the capacitor never reaches the "
+                    f"threshold through R = {format_rkm(r.value, 'resistance')}Ω at {v:g} V.",
+                )
+            )
+        elif drain * r.value > 0.01 * v * (1 - timer.ratio_band[1]):
+            out.append(
+                Finding(
+                    "warning",
+                    "drain-shifts-timing",
+                    f"threshold current and leakage ({drain:.3g} A) through R = "
+                    f"{format_rkm(r.value, 'resistance')}Ω shift the width by more than 1 %; "
+                    "a smaller R with a larger C is more robust.",
+                )
+            )
+        out.extend(dielectric_findings(block, c))
+        return out
+
+
+def _refine(model: object, goal: float, r0: FloatArray) -> FloatArray:
+    """Two secant-free corrections: scale the guess by goal / model(guess)."""
+    f = model  # a callable taking the array of guesses
+    assert callable(f)
+    r = np.asarray(r0, dtype=np.float64)
+    for _ in range(2):
+        with np.errstate(divide="ignore", invalid="ignore"):
+            w = np.asarray(f(r), dtype=np.float64)
+            ratio = np.where(np.isfinite(w) & (w > 0), goal / w, np.nan)
+        r = r * ratio
+    return r
+
+
+def _both(pair: tuple[FloatArray, FloatArray]) -> list[float]:
+    vals = {float(v) for arr in pair for v in np.atleast_1d(arr) if np.isfinite(v)}
+    return sorted(vals)

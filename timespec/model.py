@@ -1,0 +1,457 @@
+"""The typed, frozen model of a spec.
+
+Everything here is plain SI floats (°C for temperatures, fractions for
+tolerances) and validates itself on construction.  The parser and the
+statement table build these; the solver and analysis read them.  Nothing in
+this module knows about text.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+
+from timespec.devices import GateClass, TimerClass
+from timespec.values import Pos
+
+__all__ = [
+    "BLOCK_KINDS",
+    "Block",
+    "CapacitorPolicy",
+    "Conditions",
+    "PinnedPart",
+    "Requirement",
+    "ResistorPolicy",
+    "Spec",
+    "Statistics",
+    "Window",
+]
+
+#: The circuit families a block can describe.
+BLOCK_KINDS = ("oneshot", "astable", "delay", "relaxation", "crystal")
+
+
+@dataclass(frozen=True)
+class Window:
+    """An interval of one quantity, in SI units.
+
+    Attributes
+    ----------
+    low, high
+        The ends; ``-inf``/``inf`` for an open side.
+    kind
+        Kind of quantity (see :data:`timespec.units.KINDS`).
+    nominal
+        The value the interval was written around, if any.
+    """
+
+    low: float
+    high: float
+    kind: str
+    nominal: float | None = None
+
+    def __post_init__(self) -> None:
+        if math.isnan(self.low) or math.isnan(self.high):
+            raise ValueError("a window end is not a number")
+        if self.low > self.high:
+            raise ValueError(f"the window is inverted: {self.low:g} > {self.high:g}")
+        if self.nominal is not None and not (self.low <= self.nominal <= self.high):
+            raise ValueError("the nominal value lies outside its own window")
+
+    @property
+    def centre(self) -> float:
+        """The nominal value if given, else the midpoint (or the finite end of a bound)."""
+        if self.nominal is not None:
+            return self.nominal
+        if math.isinf(self.low) and math.isinf(self.high):
+            return 0.0
+        if math.isinf(self.high):
+            return self.low
+        if math.isinf(self.low):
+            return self.high
+        return 0.5 * (self.low + self.high)
+
+    def contains(self, low: float, high: float) -> bool:
+        """Whether ``[low, high]`` lies inside this window.
+
+        Parameters
+        ----------
+        low, high
+            The interval to test.
+
+        Returns
+        -------
+        bool
+            True when both ends are inside (ends included).
+        """
+        return self.low <= low and high <= self.high
+
+
+@dataclass(frozen=True)
+class Requirement:
+    """One required window of a measured quantity, e.g. the width of a one-shot.
+
+    Attributes
+    ----------
+    quantity
+        What is measured: ``"width"``, ``"frequency"``, ``"duty"``, ``"delay"``, ...
+    window
+        Where it must stay.
+    pos
+        The statement that asked for it.
+    """
+
+    quantity: str
+    window: Window
+    pos: Pos | None = field(default=None, compare=False)
+
+
+@dataclass(frozen=True)
+class ResistorPolicy:
+    """Which resistors the solver may use and how they behave.
+
+    Attributes
+    ----------
+    series
+        IEC 60063 series name.
+    tolerance
+        Relative tolerance (0.01 for ±1 %).
+    tempco_ppm
+        Temperature coefficient bound, ±ppm/K.
+    low, high
+        Allowed values, Ω.
+    pairs
+        Whether two standard values in series or parallel may stand for one part.
+    ageing
+        Bound on the relative drift per year (fraction).
+    """
+
+    series: str = "E96"
+    tolerance: float = 0.01
+    tempco_ppm: float = 100.0
+    low: float = 1e3
+    high: float = 1e6
+    pairs: bool = False
+    ageing: float = 0.0
+
+    def __post_init__(self) -> None:
+        _check_policy(self.tolerance, self.low, self.high, self.ageing)
+        if self.tempco_ppm < 0:
+            raise ValueError("a tempco bound is written as a size, e.g. 100 ppm/K")
+
+
+@dataclass(frozen=True)
+class CapacitorPolicy:
+    """Which capacitors the solver may use and how they behave.
+
+    Attributes
+    ----------
+    series
+        IEC 60063 series name.
+    tolerance
+        Relative tolerance.
+    dielectric
+        Dielectric class name (EIA-198 code, or film / electrolytic kind).
+    low, high
+        Allowed values, F.
+    pairs
+        Whether two standard values in series or parallel may stand for one part.
+    ageing
+        Bound on the relative drift per year (fraction).
+    """
+
+    series: str = "E12"
+    tolerance: float = 0.05
+    dielectric: str = "C0G"
+    low: float = 100e-12
+    high: float = 100e-9
+    pairs: bool = False
+    ageing: float = 0.0
+
+    def __post_init__(self) -> None:
+        _check_policy(self.tolerance, self.low, self.high, self.ageing)
+
+
+def _check_policy(tolerance: float, low: float, high: float, ageing: float) -> None:
+    if not (0.0 <= tolerance < 1.0):
+        raise ValueError(f"a part tolerance must lie between 0 and 100 %, not {tolerance:.4g}")
+    if not (0.0 < low <= high):
+        raise ValueError("the allowed value range must be positive and not inverted")
+    if ageing < 0:
+        raise ValueError("an ageing bound is written as a size, e.g. 0.1 %/year")
+
+
+@dataclass(frozen=True)
+class PinnedPart:
+    """A part the spec fixes: verified, not chosen.
+
+    Attributes
+    ----------
+    ref
+        Reference in the circuit (``R``, ``RA``, ``C1`` ...).
+    kind
+        ``"resistance"`` or ``"capacitance"``.
+    value
+        Ω or F.
+    tolerance
+        Relative tolerance, or ``None`` for the policy's.
+    series
+        The series it was taken from, if stated.
+    tempco_ppm
+        Resistor tempco bound (±ppm/K), or ``None`` for the policy's.
+    dielectric
+        Capacitor dielectric, or ``None`` for the policy's.
+    pos
+        Where it was written.
+    """
+
+    ref: str
+    kind: str
+    value: float
+    tolerance: float | None = None
+    series: str | None = None
+    tempco_ppm: float | None = None
+    dielectric: str | None = None
+    pos: Pos | None = field(default=None, compare=False)
+
+    def __post_init__(self) -> None:
+        if not (self.value > 0 and math.isfinite(self.value)):
+            raise ValueError(f"part {self.ref} must have a positive value")
+        if self.tolerance is not None and not (0.0 <= self.tolerance < 1.0):
+            raise ValueError(f"part {self.ref} has a tolerance outside 0…100 %")
+
+
+@dataclass(frozen=True)
+class Statistics:
+    """How Monte Carlo samples the parts.
+
+    Attributes
+    ----------
+    samples
+        Number of Monte Carlo samples.
+    seed
+        Random seed; the same seed gives byte-identical results.
+    distribution
+        ``"uniform"`` within tolerance, or ``"normal"`` truncated at the tolerance.
+    sigmas
+        For ``"normal"``: how many standard deviations the tolerance spans.
+    """
+
+    samples: int = 20_000
+    seed: int = 2026
+    distribution: str = "uniform"
+    sigmas: float = 3.0
+
+    def __post_init__(self) -> None:
+        if self.samples < 1:
+            raise ValueError("the sample count must be at least 1")
+        if self.seed < 0:
+            raise ValueError("the seed must not be negative")
+        if self.distribution not in ("uniform", "normal"):
+            raise ValueError("the spread is 'uniform' or 'normal'")
+        if not self.sigmas > 0:
+            raise ValueError("the number of sigmas must be positive")
+
+
+@dataclass(frozen=True)
+class Conditions:
+    """Operating conditions of a block.
+
+    Attributes
+    ----------
+    supply
+        Supply voltage window, V.
+    ambient_low, ambient_high
+        Ambient temperature range, °C.
+    life_years
+        Service life for ageing, years.
+    """
+
+    supply: Window
+    ambient_low: float = 25.0
+    ambient_high: float = 25.0
+    life_years: float = 0.0
+
+    def __post_init__(self) -> None:
+        if self.supply.low <= 0:
+            raise ValueError("the supply must be positive")
+        if self.ambient_low > self.ambient_high:
+            raise ValueError("the ambient range is inverted")
+        if self.life_years < 0:
+            raise ValueError("the life must not be negative")
+
+
+@dataclass(frozen=True)
+class Block:
+    """One circuit to design or check.
+
+    Attributes
+    ----------
+    kind
+        One of :data:`BLOCK_KINDS`.
+    name
+        The block's name from its header.
+    requirements
+        What must hold.
+    conditions
+        Supply, ambient range, life.
+    resistors, capacitors
+        Part policies.
+    timer
+        Timer class for 555-type blocks, else ``None``.
+    gate
+        Schmitt-inverter class for relaxation blocks, else ``None``.
+    pinned
+        Parts the spec fixes.
+    settings
+        Family-specific settings by statement keyword: a :class:`Window`, a
+        float (SI), or a word.
+    statistics
+        Monte Carlo settings.
+    pos
+        Position of the header.
+    positions
+        Where each statement keyword was written, for messages.
+    """
+
+    kind: str
+    name: str
+    requirements: tuple[Requirement, ...]
+    conditions: Conditions
+    resistors: ResistorPolicy
+    capacitors: CapacitorPolicy
+    timer: TimerClass | None = None
+    gate: GateClass | None = None
+    pinned: tuple[PinnedPart, ...] = ()
+    settings: Mapping[str, Window | float | str] = field(default_factory=dict)
+    statistics: Statistics = Statistics()
+    pos: Pos | None = field(default=None, compare=False)
+    positions: Mapping[str, Pos] = field(default_factory=dict, compare=False)
+
+    def __post_init__(self) -> None:
+        if self.kind not in BLOCK_KINDS:
+            raise ValueError(f"unknown block kind {self.kind!r}")
+
+    def requirement(self, quantity: str) -> Requirement | None:
+        """Return the requirement on a quantity, or ``None``.
+
+        Parameters
+        ----------
+        quantity
+            e.g. ``"width"``.
+
+        Returns
+        -------
+        Requirement or None
+            The requirement, when the block states one.
+        """
+        for req in self.requirements:
+            if req.quantity == quantity:
+                return req
+        return None
+
+    def window(self, key: str) -> Window | None:
+        """A window setting, or ``None`` when absent.
+
+        Parameters
+        ----------
+        key
+            Statement keyword.
+
+        Returns
+        -------
+        Window or None
+            The setting.
+        """
+        value = self.settings.get(key)
+        return value if isinstance(value, Window) else None
+
+    def number(self, key: str) -> float | None:
+        """A numeric setting in SI units, or ``None`` when absent.
+
+        Parameters
+        ----------
+        key
+            Statement keyword.
+
+        Returns
+        -------
+        float or None
+            The setting.
+        """
+        value = self.settings.get(key)
+        return float(value) if isinstance(value, float | int) else None
+
+    def word(self, key: str) -> str | None:
+        """A word setting, or ``None`` when absent.
+
+        Parameters
+        ----------
+        key
+            Statement keyword.
+
+        Returns
+        -------
+        str or None
+            The setting.
+        """
+        value = self.settings.get(key)
+        return value if isinstance(value, str) else None
+
+    def pinned_part(self, ref: str) -> PinnedPart | None:
+        """The pinned part with this reference, or ``None``.
+
+        Parameters
+        ----------
+        ref
+            Part reference, e.g. ``"R"``.
+
+        Returns
+        -------
+        PinnedPart or None
+            The part.
+        """
+        for part in self.pinned:
+            if part.ref == ref:
+                return part
+        return None
+
+
+@dataclass(frozen=True)
+class Spec:
+    """A parsed spec: its blocks in the order written.
+
+    Attributes
+    ----------
+    blocks
+        The circuits.
+    path
+        The file it came from, if any.
+    """
+
+    blocks: tuple[Block, ...]
+    path: str | None = None
+
+    def block(self, name: str) -> Block:
+        """Return the block with this name.
+
+        Parameters
+        ----------
+        name
+            The block name.
+
+        Returns
+        -------
+        Block
+            The block.
+
+        Raises
+        ------
+        KeyError
+            When no block has that name.
+        """
+        for blk in self.blocks:
+            if blk.name == name:
+                return blk
+        raise KeyError(name)

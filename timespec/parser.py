@@ -1,0 +1,424 @@
+"""Spec text → a flat list of headers and statements, with positions.
+
+The grammar (``grammar/timespec.lark``) is loaded once, lazily.  The lark tree
+is turned into :class:`Header` and :class:`Statement` entries whose arguments
+are the value classes of :mod:`timespec.values`.  Meaning — which statement
+belongs where and what its values stand for — is the business of
+:mod:`timespec.statements`; this module only reads.
+
+Every failure leaves as a :class:`~timespec.errors.SpecError` subclass with the
+file, line, column, the line itself and a hint.  No lark or pint exception
+escapes.
+"""
+
+from __future__ import annotations
+
+import functools
+import re
+from dataclasses import dataclass
+from importlib import resources
+from pathlib import Path
+from typing import Any
+
+from lark import Lark, Token, Transformer, Tree, v_args
+from lark.exceptions import (
+    UnexpectedCharacters,
+    UnexpectedEOF,
+    UnexpectedInput,
+    UnexpectedToken,
+    VisitError,
+)
+
+from timespec.errors import SpecError, SpecSyntaxError, SpecUnitError
+from timespec.rkm import parse_rkm
+from timespec.units import unit_info
+from timespec.values import (
+    Bound,
+    Fraction,
+    Pos,
+    Quantity,
+    Range,
+    Term,
+    Text,
+    Tolerance,
+    Toleranced,
+    Word,
+)
+
+__all__ = ["Entry", "Header", "Statement", "grammar_text", "parse_entries"]
+
+SECONDS_PER_YEAR = 365.25 * 24 * 3600.0
+
+
+@dataclass(frozen=True)
+class Header:
+    """A block header, ``oneshot relay_hold:`` or ``defaults:``.
+
+    Attributes
+    ----------
+    kind
+        The first word (block kind or section name).
+    name
+        The block's name, or ``None`` for a section such as ``defaults``.
+    pos
+        Position of the kind word.
+    name_pos
+        Position of the name, or ``None``.
+    """
+
+    kind: str
+    name: str | None
+    pos: Pos
+    name_pos: Pos | None
+
+
+@dataclass(frozen=True)
+class Statement:
+    """One statement: a keyword and its comma-separated arguments.
+
+    Attributes
+    ----------
+    keyword
+        The first word.
+    args
+        Each argument is the run of terms between commas.
+    pos
+        Position of the keyword.
+    """
+
+    keyword: str
+    args: tuple[tuple[Term, ...], ...]
+    pos: Pos
+
+
+Entry = Header | Statement
+
+
+def grammar_text() -> str:
+    """Return the text of the spec grammar.
+
+    The wheel carries the grammar as ``timespec/_grammar/timespec.lark``; a
+    source checkout reads it from the top-level ``grammar/`` folder.
+
+    Returns
+    -------
+    str
+        The lark grammar.
+    """
+    packaged = resources.files("timespec").joinpath("_grammar", "timespec.lark")
+    if packaged.is_file():
+        return packaged.read_text(encoding="utf-8")
+    here = Path(__file__).resolve().parent.parent / "grammar" / "timespec.lark"
+    return here.read_text(encoding="utf-8")
+
+
+@functools.cache
+def _lark() -> Lark:
+    return Lark(
+        grammar_text(),
+        parser="lalr",
+        lexer="contextual",
+        propagate_positions=True,
+        maybe_placeholders=False,
+    )
+
+
+# Characters that look alike but that pint or the grammar would not take.
+# Each replacement has the same length, so columns stay right.
+_LOOKALIKES = str.maketrans({"−": "-", "–": "-", "\u00a0": " ", "μ": "µ"})
+
+_PER_YEAR = re.compile(r"^(?P<num>.+)/(years?|yr|a)$")
+
+
+class _Builder(Transformer[Token, Any]):
+    """Turn the lark tree into entries.  One method per grammar rule."""
+
+    def __init__(self, path: str | None, lines: list[str]) -> None:
+        super().__init__()
+        self._path = path
+        self._lines = lines
+
+    # -- positions --------------------------------------------------------
+    def _pos(self, line: int, column: int) -> Pos:
+        text = self._lines[line - 1] if 0 < line <= len(self._lines) else ""
+        return Pos(self._path, line, column, text)
+
+    def _tpos(self, tok: Token) -> Pos:
+        return self._pos(tok.line or 1, tok.column or 1)
+
+    def _mpos(self, meta: Any) -> Pos:
+        return self._pos(getattr(meta, "line", 1), getattr(meta, "column", 1))
+
+    # -- structure ----------------------------------------------------------
+    def start(self, children: list[Any]) -> list[Entry]:
+        out: list[Entry] = []
+        for child in children:
+            if isinstance(child, list):
+                out.extend(child)
+            elif isinstance(child, Header | Statement):
+                out.append(child)
+        return out
+
+    def header(self, children: list[Any]) -> list[Entry]:
+        words = [c for c in children if isinstance(c, Token) and c.type == "WORD"]
+        stmts = [c for c in children if isinstance(c, Statement)]
+        kind = words[0]
+        name = words[1] if len(words) > 1 else None
+        head = Header(
+            str(kind),
+            str(name) if name is not None else None,
+            self._tpos(kind),
+            self._tpos(name) if name is not None else None,
+        )
+        return [head, *stmts]
+
+    def statement(self, children: list[Any]) -> Statement:
+        keyword = children[0]
+        args = tuple(tuple(a) for a in children[1:])
+        return Statement(str(keyword), args, self._tpos(keyword))
+
+    def arg(self, children: list[Any]) -> list[Term]:
+        return list(children)
+
+    # -- terms ----------------------------------------------------------------
+    def word(self, children: list[Token]) -> Word:
+        return Word(str(children[0]), self._tpos(children[0]))
+
+    def text(self, children: list[Token]) -> Text:
+        return Text(str(children[0])[1:-1], self._tpos(children[0]))
+
+    @v_args(meta=True)
+    def toleranced(self, meta: Any, children: list[Any]) -> Toleranced:
+        return Toleranced(children[0], children[1], self._mpos(meta))
+
+    @v_args(meta=True)
+    def range(self, meta: Any, children: list[Any]) -> Range:
+        return Range(children[0], children[1], self._mpos(meta))
+
+    @v_args(meta=True)
+    def fraction_range(self, meta: Any, children: list[Any]) -> Fraction:
+        pos = self._mpos(meta)
+        return Fraction(Range(children[0], children[1], pos), str(children[2]), pos)
+
+    @v_args(meta=True)
+    def fraction_toleranced(self, meta: Any, children: list[Any]) -> Fraction:
+        pos = self._mpos(meta)
+        return Fraction(Toleranced(children[0], children[1], pos), str(children[2]), pos)
+
+    @v_args(meta=True)
+    def fraction(self, meta: Any, children: list[Any]) -> Fraction:
+        return Fraction(children[0], str(children[1]), self._mpos(meta))
+
+    @v_args(meta=True)
+    def at_least(self, meta: Any, children: list[Any]) -> Bound:
+        return Bound(children[0], "min", self._mpos(meta))
+
+    @v_args(meta=True)
+    def at_most(self, meta: Any, children: list[Any]) -> Bound:
+        return Bound(children[0], "max", self._mpos(meta))
+
+    def bare_tolerance(self, children: list[Any]) -> Tolerance:
+        tol: Tolerance = children[0]
+        return tol
+
+    @v_args(meta=True)
+    def tol_symmetric(self, meta: Any, children: list[Any]) -> Tolerance:
+        q: Quantity = children[1]
+        return Tolerance(q, q, self._mpos(meta))
+
+    @v_args(meta=True)
+    def tol_asymmetric(self, meta: Any, children: list[Any]) -> Tolerance:
+        return Tolerance(children[1], children[0], self._mpos(meta))
+
+    # -- quantities ----------------------------------------------------------
+    def _quantity(self, number: Token, unit: Token | None, sign: float, start: Token) -> Quantity:
+        magnitude = sign * float(number)
+        text = ("-" if sign < 0 else "") + str(number) + (str(unit) if unit is not None else "")
+        if unit is None:
+            return Quantity(magnitude, None, text, self._tpos(start))
+        per_year = _PER_YEAR.match(str(unit))
+        unit_text = per_year.group("num") if per_year else str(unit)
+        try:
+            info = unit_info(unit_text)
+        except ValueError as exc:
+            hint = None
+            if str(unit) in ("k", "K", "M", "R"):
+                hint = f"for an RKM code write it without a decimal point, e.g. {number}{unit}0 → use 4k7 for 4.7 kΩ, or write '{number} k{'ohm'}'"
+            raise _positioned(SpecUnitError, str(exc), self._tpos(unit), hint) from None
+        if info.kind is None:
+            raise _positioned(
+                SpecUnitError,
+                f"unit {str(unit)!r} is not one timespec uses (dimension {info.dimensionality})",
+                self._tpos(unit),
+                "timespec reads times, frequencies, resistance, capacitance, voltage, "
+                "current, power, temperature, %, ppm and ppm/K",
+            )
+        value = magnitude * info.scale + info.offset
+        kind: str = info.kind
+        if per_year:
+            if kind != "ratio":
+                raise _positioned(
+                    SpecUnitError,
+                    f"a rate per year must be a ratio such as ppm/year or %/year, not {unit}",
+                    self._tpos(unit),
+                    None,
+                )
+            kind = "rate"
+        return Quantity(value, kind, text, self._tpos(start))
+
+    def number(self, children: list[Token]) -> Quantity:
+        unit = children[1] if len(children) > 1 else None
+        return self._quantity(children[0], unit, 1.0, children[0])
+
+    def negative(self, children: list[Token]) -> Quantity:
+        unit = children[1] if len(children) > 1 else None
+        q = self._quantity(children[0], unit, -1.0, children[0])
+        pos = q.pos
+        return Quantity(q.value, q.kind, q.text, Pos(pos.path, pos.line, max(1, pos.column - 1), pos.source_line))
+
+    def rkm(self, children: list[Token]) -> Quantity:
+        tok = children[0]
+        try:
+            value, dimension = parse_rkm(str(tok))
+        except ValueError as exc:
+            raise _positioned(SpecUnitError, str(exc), self._tpos(tok), None) from None
+        return Quantity(value, dimension, str(tok), self._tpos(tok))
+
+
+def _positioned(
+    cls: type[SpecError], message: str, pos: Pos, hint: str | None
+) -> SpecError:
+    return cls(
+        message,
+        path=pos.path,
+        line=pos.line,
+        column=pos.column,
+        source_line=pos.source_line,
+        hint=hint,
+    )
+
+
+_TERMINAL_NAMES = {
+    "NUMBER": "a number",
+    "UNIT": "a unit",
+    "WORD": "a word",
+    "STRING": 'a quoted file name',
+    "RKM": "a value such as 4k7",
+    "PLUSMINUS": "±",
+    "_NL": "the end of the line",
+    "COLON": "':'",
+    "COMMA": "','",
+    "SEMICOLON": "';'",
+    "PLUS": "'+'",
+    "MINUS": "'-'",
+    "TO": "'to'",
+    "OF": "'of'",
+    "MIN": "'min'",
+    "MAX": "'max'",
+    "AT": "'at'",
+    "$END": "the end of the file",
+}
+
+
+def _expected_text(expected: set[str] | frozenset[str]) -> str:
+    names = sorted({_TERMINAL_NAMES.get(e, e.lower()) for e in expected})
+    if not names:
+        return "something else"
+    if len(names) == 1:
+        return names[0]
+    return ", ".join(names[:-1]) + " or " + names[-1]
+
+
+def _syntax_hint(line: str, column: int, got: str) -> str | None:
+    before = line[: column - 1].rstrip()
+    if got in ("\n", "") and before.endswith(("±", "+-", "+/-")):
+        return "a tolerance needs a size after ±, e.g. ±5% or ±2 ms"
+    if got == ":":
+        return "a block header is '<kind> <name>:' on a line of its own, e.g. 'oneshot relay_hold:'"
+    if before.endswith(" to") or before.endswith("\tto"):
+        return "a range needs both ends, e.g. '20 ms to 40 ms'"
+    if got == "." :
+        return "write decimals with a digit before the point, e.g. 0.5, and RKM codes without one, e.g. 4k7"
+    if got and (got[0].isdigit() or got[0] == "-") and re.search(r"[A-Za-z]$", before):
+        return None
+    if got == ",":
+        return "a comma separates the arguments of a statement; something is missing before it"
+    return None
+
+
+def _convert_lark_error(exc: UnexpectedInput, text: str, path: str | None) -> SpecSyntaxError:
+    lines = text.splitlines() or [""]
+    line = getattr(exc, "line", None) or 1
+    column = getattr(exc, "column", None) or 1
+    if isinstance(exc, UnexpectedEOF) or (line == -1):
+        line = len(lines)
+        column = len(lines[-1]) + 1
+    source = lines[line - 1] if 0 < line <= len(lines) else ""
+    if isinstance(exc, UnexpectedCharacters):
+        got = source[column - 1] if column - 1 < len(source) else ""
+        message = f"unexpected character {got!r}"
+        allowed = exc.allowed or set()
+        if allowed:
+            message += f"; expected {_expected_text(allowed)}"
+    elif isinstance(exc, UnexpectedToken):
+        tok = exc.token
+        got = str(tok) if tok.type != "$END" else ""
+        if tok.type == "_NL":
+            message = "the line ends too early"
+            got = "\n"
+            # point just past the last character of the line
+            column = len(source.rstrip()) + 1
+        elif tok.type == "$END":
+            message = "the file ends too early"
+        else:
+            message = f"unexpected {got!r}"
+        expected = {e for e in exc.expected if not e.startswith("__")}
+        if expected:
+            message += f"; expected {_expected_text(expected)}"
+    else:
+        got = ""
+        message = "the spec ends too early"
+    hint = _syntax_hint(source, column, got)
+    return SpecSyntaxError(
+        message, path=path, line=line, column=column, source_line=source, hint=hint
+    )
+
+
+def parse_entries(text: str, path: str | None = None) -> list[Entry]:
+    """Parse spec text into headers and statements.
+
+    Parameters
+    ----------
+    text
+        The spec text.
+    path
+        The file it came from, used in error messages.
+
+    Returns
+    -------
+    list of Header or Statement
+        In the order written; a one-line block gives its header then its statements.
+
+    Raises
+    ------
+    SpecSyntaxError
+        When the text does not follow the grammar.
+    SpecUnitError
+        When a unit is unknown or not one timespec uses.
+    """
+    text = text.translate(_LOOKALIKES)
+    if text and not text.endswith("\n"):
+        text += "\n"
+    lines = text.splitlines()
+    try:
+        tree: Tree[Token] = _lark().parse(text)
+    except UnexpectedInput as exc:
+        raise _convert_lark_error(exc, text, path) from None
+    try:
+        entries: list[Entry] = _Builder(path, lines).transform(tree)
+    except VisitError as exc:
+        inner = exc.orig_exc
+        if isinstance(inner, SpecError):
+            raise inner from None
+        raise SpecSyntaxError(f"could not read the spec: {inner}", path=path) from None
+    return entries
