@@ -127,6 +127,9 @@ def _lark() -> Lark:
 # Each replacement has the same length, so columns stay right.
 _LOOKALIKES = str.maketrans({"−": "-", "–": "-", "\u00a0": " ", "μ": "µ"})
 
+#: Multiplier letters of IEC 60062 RKM codes, when written after a decimal number.
+_RKM_LETTERS = frozenset("RKkMGTpnuµμ")
+
 _PER_YEAR = re.compile(r"^(?P<num>.+)/(years?|yr|a)$")
 
 
@@ -233,18 +236,17 @@ class _Builder(Transformer[Token, Any]):
     # -- quantities ----------------------------------------------------------
     def _quantity(self, number: Token, unit: Token | None, sign: float, start: Token) -> Quantity:
         magnitude = sign * float(number)
-        text = ("-" if sign < 0 else "") + str(number) + (str(unit) if unit is not None else "")
+        text = ("-" if sign < 0 else "") + str(number) + (f" {unit}" if unit is not None else "")
         if unit is None:
             return Quantity(magnitude, None, text, self._tpos(start))
+        if str(unit) in _RKM_LETTERS and not (str(unit) == "K" and not _adjacent(number, unit)):
+            return self._decimal_rkm(number, unit, sign, start)
         per_year = _PER_YEAR.match(str(unit))
         unit_text = per_year.group("num") if per_year else str(unit)
         try:
             info = unit_info(unit_text)
         except ValueError as exc:
-            hint = None
-            if str(unit) in ("k", "K", "M", "R"):
-                hint = f"for an RKM code write it without a decimal point, e.g. {number}{unit}0 → use 4k7 for 4.7 kΩ, or write '{number} k{'ohm'}'"
-            raise _positioned(SpecUnitError, str(exc), self._tpos(unit), hint) from None
+            raise _positioned(SpecUnitError, str(exc), self._tpos(unit), None) from None
         if info.kind is None:
             raise _positioned(
                 SpecUnitError,
@@ -266,6 +268,23 @@ class _Builder(Transformer[Token, Any]):
             kind = "rate"
         return Quantity(value, kind, text, self._tpos(start))
 
+    def _decimal_rkm(self, number: Token, unit: Token, sign: float, start: Token) -> Quantity:
+        """``4.7k`` or ``4.7 k``: a value with a bare multiplier letter."""
+        code = f"{number}{unit}"
+        if not _adjacent(number, unit) or sign < 0:
+            raise _positioned(
+                SpecUnitError,
+                f"{str(unit)!r} on its own is not a unit",
+                self._tpos(unit),
+                f"write the value as an RKM code without spaces ({code}) or with a full unit "
+                f"('{number} k{'ohm' if str(unit) in 'kKMGR' else 'F'}')",
+            )
+        try:
+            value, dimension = parse_rkm(code)
+        except ValueError as exc:
+            raise _positioned(SpecUnitError, str(exc), self._tpos(start), None) from None
+        return Quantity(value, dimension, code, self._tpos(start))
+
     def number(self, children: list[Token]) -> Quantity:
         unit = children[1] if len(children) > 1 else None
         return self._quantity(children[0], unit, 1.0, children[0])
@@ -283,6 +302,10 @@ class _Builder(Transformer[Token, Any]):
         except ValueError as exc:
             raise _positioned(SpecUnitError, str(exc), self._tpos(tok), None) from None
         return Quantity(value, dimension, str(tok), self._tpos(tok))
+
+
+def _adjacent(first: Token, second: Token) -> bool:
+    return first.end_pos is not None and first.end_pos == second.start_pos
 
 
 def _positioned(
@@ -331,8 +354,14 @@ def _expected_text(expected: set[str] | frozenset[str]) -> str:
 
 def _syntax_hint(line: str, column: int, got: str) -> str | None:
     before = line[: column - 1].rstrip()
-    if got in ("\n", "") and before.endswith(("±", "+-", "+/-")):
+    if before.endswith(("±", "+-", "+/-")):
         return "a tolerance needs a size after ±, e.g. ±5% or ±2 ms"
+    head = re.match(r"\s*([A-Za-z_]\w*)\s*:", line)
+    if head:
+        from timespec.statements import KEYWORDS
+
+        if head.group(1) in KEYWORDS:
+            return f"statements take no ':'; write it like: {KEYWORDS[head.group(1)].example}"
     if got == ":":
         return "a block header is '<kind> <name>:' on a line of its own, e.g. 'oneshot relay_hold:'"
     if before.endswith(" to") or before.endswith("\tto"):

@@ -10,6 +10,12 @@ on those, and ranks them:
 2. centring: the worst-case window's middle nearest the requirement's middle;
 3. simpler: coarser series first, fewer parts, then the smaller capacitor.
 
+A series or parallel pair of standard values (allowed by ``pairs`` in a policy)
+counts as two parts.  Among designs that meet, one using fewer pairs ranks first
+whatever its centring: a part is only added where it is needed.  Nominal
+screening keeps a shortlist for each pair count, so pairs (usually nearest the
+target) never crowd out the single-part designs.
+
 When no candidate meets the requirement the block is *infeasible* and the
 closest candidate (least excursion outside the window) is reported with it.
 """
@@ -22,7 +28,14 @@ from collections import defaultdict
 import numpy as np
 
 from timespec import series as eseries
-from timespec.analysis import Factor, corner_label, nominal_inputs, worst_case
+from timespec.analysis import (
+    Extremes,
+    Factor,
+    corner_label,
+    nominal_inputs,
+    worst_case,
+    worst_case_many,
+)
 from timespec.families import family
 from timespec.families.base import Design, Family, window_score
 from timespec.model import Block, Spec
@@ -56,6 +69,18 @@ def evaluate_design(block: Block, design: Design, fam: Family | None = None) -> 
     fam = fam or family(block.kind)
     factors = fam.factors(block, design)
     extremes = worst_case(factors, fam.evaluate(block, design.variant))
+    return _candidate(block, design, fam, factors, extremes)
+
+
+def _candidate(
+    block: Block,
+    design: Design,
+    fam: Family,
+    factors: list[Factor],
+    extremes: dict[str, Extremes],
+    *,
+    rules: bool = True,
+) -> Candidate:
     outputs = []
     for out in fam.outputs(block):
         ex = extremes[out.name]
@@ -69,10 +94,12 @@ def evaluate_design(block: Block, design: Design, fam: Family | None = None) -> 
                 nominal=ex.nominal,
                 low=ex.low,
                 high=ex.high,
-                low_corner=corner_label(ex.low_at, factors),
-                high_corner=corner_label(ex.high_at, factors),
+                low_corner=corner_label(ex.low_at, factors) if rules else "",
+                high_corner=corner_label(ex.high_at, factors) if rules else "",
             )
         )
+    if not rules:
+        return Candidate(design, tuple(outputs), ())
     findings = fam.findings(block, design, {k: (v.low, v.high) for k, v in extremes.items()})
     return Candidate(design, tuple(outputs), tuple(findings))
 
@@ -99,8 +126,8 @@ def _centring(cand: Candidate) -> float:
     return worst
 
 
-def rank_key(cand: Candidate) -> tuple[int, float, float, int, int, float]:
-    """Sort key: meets first, then least excursion, centring, simplicity.
+def rank_key(cand: Candidate) -> tuple[int, float, int, float, int, int, float]:
+    """Sort key: meets first, then least excursion, fewest pairs, centring, simplicity.
 
     Parameters
     ----------
@@ -113,16 +140,22 @@ def rank_key(cand: Candidate) -> tuple[int, float, float, int, int, float]:
         Smaller is better.
     """
     parts = cand.design.parts
-    complexity = sum(_series_rank(p.series) for p in parts)
+    complexity = sum(_series_rank(p.series) * p.count for p in parts)
     cap = sum(p.value for p in parts if p.kind == "capacitance")
     return (
         0 if cand.meets else 1,
         round(cand.excess, 9),
+        _pairs(cand.design),
         round(_centring(cand), 6),
         complexity,
-        len(parts),
+        sum(p.count for p in parts),
         cap,
     )
+
+
+def _pairs(design: Design) -> int:
+    """How many parts of a design are series/parallel pairs."""
+    return sum(1 for p in design.parts if p.pair is not None)
 
 
 def _reason(cand: Candidate, best: Candidate) -> str:
@@ -132,6 +165,8 @@ def _reason(cand: Candidate, best: Candidate) -> str:
         if any(f.severity == "error" for f in cand.findings):
             return "design-rule error"
         return f"worst case outside the requirement by {cand.excess * 100:.3g} % of its width"
+    if _pairs(cand.design) > _pairs(best.design):
+        return "meets, but needs more parts (a series or parallel pair)"
     c, b = _centring(cand), _centring(best)
     if c > b + 1e-6:
         return f"meets, less centred ({c * 100:.3g} % of the half-window off centre)"
@@ -162,8 +197,81 @@ def _shortlist(block: Block, fam: Family, designs: list[Design], keep: int) -> l
                 sc = window_score(np.asarray(out[req.quantity]), req.window)
                 s = np.maximum(s, np.where(np.isfinite(sc), sc, np.inf))
         scores[idx] = s
-    order = np.argsort(scores, kind="stable")[:keep]
-    return [designs[i] for i in order]
+    order = np.argsort(scores, kind="stable")
+    taken: dict[int, int] = defaultdict(int)
+    chosen: list[int] = []
+    for i in order:  # the best few of each pair count
+        k = _pairs(designs[i])
+        if taken[k] < keep:
+            taken[k] += 1
+            chosen.append(int(i))
+    return [designs[i] for i in chosen]
+
+
+def _preselect(block: Block, fam: Family, designs: list[Design], keep: int) -> list[Design]:
+    """Quick ranking of a shortlist before the exhaustive worst case.
+
+    The extreme corners of the first design are evaluated for every design of
+    the same layout (designs of one family share their sensitivity pattern, so
+    the same corners are extreme); the ``keep`` best by the usual ranking then
+    get the full, exhaustive corner search that the report relies on.
+    """
+    if len(designs) <= keep:
+        return designs
+    first = designs[0]
+    facs = fam.factors(block, first)
+    extremes = worst_case(facs, fam.evaluate(block, first.variant))
+    corners = [e.low_at for e in extremes.values()] + [e.high_at for e in extremes.values()]
+    quick: list[tuple[tuple[int, float, float, int, int, float], int]] = []
+    sig = _signature(facs)
+    for i, d in enumerate(designs):
+        dfacs = fam.factors(block, d)
+        if d.variant != first.variant or _signature(dfacs) != sig:
+            quick.append(((0, 0.0, 0.0, 0, 0, 0.0), i))  # different layout: keep it
+            continue
+        x = nominal_inputs(dfacs)
+        n = len(corners) + 1
+        x = {k: np.repeat(v, n) for k, v in x.items()}
+        for j, corner in enumerate(corners, start=1):
+            for name, value in corner.items():
+                x[name][j] = value
+        with np.errstate(all="ignore"):
+            out = fam.evaluate(block, d.variant)(x)
+        approx = {
+            k: Extremes(float(v[0]), float(np.min(v)), float(np.max(v)), {}, {})
+            for k, v in out.items()
+        }
+        quick.append((rank_key(_candidate(block, d, fam, dfacs, approx, rules=False)), i))
+    quick.sort()
+    return [designs[i] for _, i in quick[:keep]]
+
+
+def _signature(factors: list[Factor]) -> tuple[object, ...]:
+    return tuple(
+        (f.name, f.nominal, f.low, f.high, f.distribution, f.sigmas, f.monotone)
+        for f in factors
+        if not f.name.endswith(".value")
+    )
+
+
+def _analyse_many(block: Block, fam: Family, designs: list[Design]) -> list[Candidate]:
+    """Worst case of many designs, batched per circuit variant and factor layout."""
+    groups: dict[tuple[object, ...], list[tuple[Design, list[Factor]]]] = defaultdict(list)
+    for d in designs:
+        facs = fam.factors(block, d)
+        groups[(d.variant, _signature(facs))].append((d, facs))
+    out: list[Candidate] = []
+    for (variant, _sig), members in groups.items():
+        template = members[0][1]
+        refs = [f.name for f in template if f.name.endswith(".value")]
+        overrides = {
+            name: np.array([next(f.nominal for f in facs if f.name == name) for _, facs in members])
+            for name in refs
+        }
+        many = worst_case_many(template, fam.evaluate(block, str(variant)), overrides)
+        for (d, facs), extremes in zip(members, many, strict=True):
+            out.append(_candidate(block, d, fam, facs, extremes))
+    return out
 
 
 def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
@@ -196,7 +304,8 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
             ),
         )
     chosen = _shortlist(block, fam, designs, shortlist)
-    analysed = sorted((evaluate_design(block, d, fam) for d in chosen), key=rank_key)
+    chosen = _preselect(block, fam, chosen, 1 + ALTERNATIVES)
+    analysed = sorted(_analyse_many(block, fam, chosen), key=rank_key)
     best = analysed[0]
     alternatives = tuple(
         Candidate(c.design, c.outputs, c.findings, _reason(c, best))

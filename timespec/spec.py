@@ -70,10 +70,15 @@ class _Section:
 
 
 def _walk(
-    text: str, path: Path | None, root: Path | None, seen: tuple[Path, ...]
+    text: str,
+    path: Path | None,
+    root: Path | None,
+    seen: tuple[Path, ...],
+    shown: str | None = None,
 ) -> list[Entry]:
     """Parse and splice ``include`` files in; an include ends the current block."""
-    shown = str(path) if path is not None else None
+    if shown is None and path is not None:
+        shown = str(path)
     entries = parse_entries(text, shown)
     out: list[Entry] = []
     for entry in entries:
@@ -411,7 +416,7 @@ def parse(text: str, path: str | None = None) -> Spec:
     """
     if not isinstance(text, str):
         raise SpecValueError(f"spec text must be a str, not {type(text).__name__}")
-    entries = _walk(text, None, None, ())
+    entries = _walk(text, None, None, (), shown=path)
     return _assemble(entries, path)
 
 

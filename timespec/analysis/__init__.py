@@ -32,7 +32,7 @@ from timespec.analysis.stats import (
     truncated_normal_std,
     wilson_interval,
 )
-from timespec.analysis.worstcase import Extremes, corner_label, worst_case
+from timespec.analysis.worstcase import Extremes, corner_label, worst_case, worst_case_many
 
 __all__ = [
     "PERCENTILES",
@@ -61,4 +61,5 @@ __all__ = [
     "truncated_normal_std",
     "wilson_interval",
     "worst_case",
+    "worst_case_many",
 ]

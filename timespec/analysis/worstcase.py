@@ -25,7 +25,7 @@ from timespec.analysis.factors import (
     nominal_inputs,
 )
 
-__all__ = ["Extremes", "corner_label", "worst_case"]
+__all__ = ["Extremes", "corner_label", "worst_case", "worst_case_many"]
 
 _CHUNK = 65_536  # grid points evaluated per call of the model
 
@@ -197,6 +197,111 @@ def worst_case(
                 high_at=_point(t.high_index, varying, levels, strides),
             )
     return result
+
+
+def worst_case_many(
+    factors: Sequence[Factor],
+    evaluate: Evaluate,
+    overrides: Mapping[str, FloatArray],
+    *,
+    interior_points: int = 9,
+    max_points: int = 2**20,
+) -> list[dict[str, Extremes]]:
+    """Worst case of many variants of one model at once (e.g. candidate designs).
+
+    Parameters
+    ----------
+    factors : sequence of Factor
+        The factors shared by every variant.
+    evaluate : Evaluate
+        Vectorised model.
+    overrides : mapping of str to FloatArray
+        For some *fixed* factors, one value per variant (all arrays the same length).
+    interior_points, max_points : int, optional
+        As for :func:`worst_case`.
+
+    Returns
+    -------
+    list of dict of str to Extremes
+        One result per variant, identical to calling :func:`worst_case` with the
+        fixed factors set to that variant's values.
+
+    Raises
+    ------
+    ValueError
+        If an override names a varying or unknown factor, the arrays differ in
+        length, or the grid is too large.
+
+    Notes
+    -----
+    The grid of :func:`worst_case` is built once and evaluated for all variants in
+    one vectorised call (in chunks), which is what makes ranking a shortlist of
+    designs cheap.
+    """
+    if interior_points < 2:
+        raise ValueError(f"interior_points must be at least 2, got {interior_points}")
+    facs = check_factors(factors)
+    by_name = {f.name: f for f in facs}
+    sizes = {len(np.atleast_1d(v)) for v in overrides.values()}
+    if len(sizes) != 1:
+        raise ValueError("override arrays must all have the same length")
+    (d_total,) = sizes
+    for name in overrides:
+        if name not in by_name or is_varying(by_name[name]):
+            raise ValueError(f"override {name!r} is not a fixed factor")
+    varying = [f for f in facs if is_varying(f)]
+    levels = [_levels(f, interior_points) for f in varying]
+    count = math.prod(len(lv) for lv in levels)
+    if count > max_points:
+        raise ValueError(f"worst-case grid has {count} points, more than max_points={max_points}")
+    strides = [math.prod(len(lv) for lv in levels[j + 1 :]) for j in range(len(levels))]
+    index = np.arange(count, dtype=np.int64)
+    grid = {f.name: lv[(index // st) % len(lv)] for f, lv, st in zip(varying, levels, strides, strict=True)}
+    fixed = [f for f in facs if not is_varying(f)]
+    ov = {k: np.asarray(np.atleast_1d(v), dtype=np.float64) for k, v in overrides.items()}
+
+    nominal_in = {k: np.repeat(v, d_total) for k, v in nominal_inputs(facs).items()}
+    nominal_in.update(ov)
+    nominal = call_evaluate(evaluate, nominal_in, d_total)
+
+    results: list[dict[str, Extremes]] = []
+    per_call = max(1, _CHUNK // max(count, 1))
+    for d0 in range(0, d_total, per_call):
+        d1 = min(d0 + per_call, d_total)
+        d = d1 - d0
+        n = d * count
+        inputs: dict[str, FloatArray] = {}
+        for f in fixed:
+            if f.name in ov:
+                inputs[f.name] = np.repeat(ov[f.name][d0:d1], count)
+            else:
+                inputs[f.name] = np.full(n, f.nominal)
+        for name, col in grid.items():
+            inputs[name] = np.tile(col, d)
+        outputs = call_evaluate(evaluate, inputs, n)
+        if outputs.keys() != nominal.keys():
+            raise ValueError(
+                f"evaluate returned outputs {sorted(outputs)}, expected {sorted(nominal)}"
+            )
+        for j in range(d):
+            res: dict[str, Extremes] = {}
+            for key, arr in outputs.items():
+                row = arr[j * count : (j + 1) * count]
+                tracker = _Tracker(float(nominal[key][d0 + j]))
+                tracker.update(row, 0)
+                if tracker.nan_index is not None:
+                    at = _point(tracker.nan_index, varying, levels, strides)
+                    res[key] = Extremes(tracker.low, math.nan, math.nan, at, dict(at))
+                else:
+                    res[key] = Extremes(
+                        nominal=float(nominal[key][d0 + j]),
+                        low=tracker.low,
+                        high=tracker.high,
+                        low_at=_point(tracker.low_index, varying, levels, strides),
+                        high_at=_point(tracker.high_index, varying, levels, strides),
+                    )
+            results.append(res)
+    return results
 
 
 def _short_name(factor: Factor) -> str:

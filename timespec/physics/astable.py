@@ -17,7 +17,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from timespec.physics._types import ArrayLike, FloatArray, as_float_array
+from timespec.physics._types import ArrayLike, FloatArray, as_float_array, quiet
 from timespec.physics.rcdelay import charge_time
 
 __all__ = [
@@ -51,6 +51,7 @@ def _levels(v_supply: ArrayLike, threshold_ratio: ArrayLike) -> tuple[FloatArray
     return as_float_array(0.5 * upper), upper
 
 
+@quiet
 def classic_high_time(
     ra: ArrayLike,
     rb: ArrayLike,
@@ -97,6 +98,7 @@ def classic_high_time(
     return charge_time(r, c, v_supply, lo, hi, i_drain)
 
 
+@quiet
 def discharge_node(
     v_supply: ArrayLike, ra: ArrayLike, r_on: ArrayLike
 ) -> tuple[FloatArray, FloatArray]:
@@ -134,6 +136,7 @@ def discharge_node(
     return v_n, r_n
 
 
+@quiet
 def classic_low_time(
     ra: ArrayLike,
     rb: ArrayLike,
@@ -187,6 +190,7 @@ def classic_low_time(
     return charge_time(r, c, v_n, hi, lo, i_drain)
 
 
+@quiet
 def diode_high_time(
     ra: ArrayLike,
     c: ArrayLike,
@@ -253,6 +257,7 @@ def diode_high_time(
     return as_float_array(t_on + t_off)
 
 
+@quiet
 def diode_low_time(
     ra: ArrayLike,
     rb: ArrayLike,
@@ -298,6 +303,7 @@ def diode_low_time(
     return classic_low_time(ra, rb, c, v_supply, threshold_ratio, r_on, i_drain)
 
 
+@quiet
 def feedback_high_time(
     r: ArrayLike,
     c: ArrayLike,
@@ -342,6 +348,7 @@ def feedback_high_time(
     return charge_time(r, c, v_high, lo, hi, i_drain)
 
 
+@quiet
 def feedback_low_time(
     r: ArrayLike,
     c: ArrayLike,
@@ -384,6 +391,7 @@ def feedback_low_time(
     return charge_time(r, c, v_low, hi, lo, i_drain)
 
 
+@quiet
 def frequency(t_high: ArrayLike, t_low: ArrayLike) -> FloatArray:
     """Oscillation frequency from the two half-periods.
 
@@ -411,6 +419,7 @@ def frequency(t_high: ArrayLike, t_low: ArrayLike) -> FloatArray:
         return as_float_array(1.0 / (as_float_array(t_high) + as_float_array(t_low)))
 
 
+@quiet
 def duty(t_high: ArrayLike, t_low: ArrayLike) -> FloatArray:
     """Duty cycle (fraction of the period the output is high).
 
@@ -439,6 +448,7 @@ def duty(t_high: ArrayLike, t_low: ArrayLike) -> FloatArray:
         return as_float_array(th / (th + as_float_array(t_low)))
 
 
+@quiet
 def diode_forward_voltage(v25: ArrayLike, tc_mv_per_k: ArrayLike, temp_c: ArrayLike) -> FloatArray:
     """Forward drop of a silicon diode at temperature, linear model.
 
@@ -470,6 +480,7 @@ def diode_forward_voltage(v25: ArrayLike, tc_mv_per_k: ArrayLike, temp_c: ArrayL
     return as_float_array(as_float_array(v25) + 1e-3 * as_float_array(tc_mv_per_k) * dt)
 
 
+@quiet
 def discharge_current(v_supply: ArrayLike, ra: ArrayLike) -> FloatArray:
     """Current the discharge pin sinks from the supply through ``ra`` while on.
 

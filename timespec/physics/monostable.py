@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from timespec.physics._types import ArrayLike, FloatArray, as_float_array
+from timespec.physics._types import ArrayLike, FloatArray, as_float_array, quiet
 from timespec.physics.rcdelay import charge_time
 
 __all__ = [
@@ -26,6 +26,7 @@ __all__ = [
 ]
 
 
+@quiet
 def discharge_on_resistance(v_sat: ArrayLike, i_sat: ArrayLike) -> FloatArray:
     """On-resistance of the discharge transistor from a datasheet saturation figure.
 
@@ -55,6 +56,7 @@ def discharge_on_resistance(v_sat: ArrayLike, i_sat: ArrayLike) -> FloatArray:
         return as_float_array(as_float_array(v_sat) / as_float_array(i_sat))
 
 
+@quiet
 def start_voltage(
     v_supply: ArrayLike, r: ArrayLike, r_on: ArrayLike, i_drain: ArrayLike = 0.0
 ) -> FloatArray:
@@ -96,6 +98,7 @@ def start_voltage(
     return as_float_array(v0)
 
 
+@quiet
 def width(
     r: ArrayLike,
     c: ArrayLike,
@@ -144,6 +147,7 @@ def width(
     return charge_time(r, c, v, v0, as_float_array(threshold_ratio) * v, i_drain)
 
 
+@quiet
 def width_control(
     r: ArrayLike,
     c: ArrayLike,
@@ -188,6 +192,7 @@ def width_control(
     return charge_time(r, c, v, v0, v_control, i_drain)
 
 
+@quiet
 def recovery_time(
     c: ArrayLike,
     r_on: ArrayLike,
@@ -236,6 +241,7 @@ def recovery_time(
     return as_float_array(np.where(s >= k, 0.0, t))
 
 
+@quiet
 def max_drain_resistance(
     v_supply: ArrayLike, threshold_ratio: ArrayLike, i_drain: ArrayLike
 ) -> FloatArray:

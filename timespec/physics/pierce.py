@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from timespec.physics._types import ArrayLike, FloatArray, as_float_array
+from timespec.physics._types import ArrayLike, FloatArray, as_float_array, quiet
 
 __all__ = [
     "budget_rss",
@@ -34,6 +34,7 @@ __all__ = [
 _TWO_PI = 2.0 * np.pi
 
 
+@quiet
 def load_capacitance(c1: ArrayLike, c2: ArrayLike, c_stray: ArrayLike) -> FloatArray:
     """Load capacitance presented to the crystal by a Pierce stage.
 
@@ -65,6 +66,7 @@ def load_capacitance(c1: ArrayLike, c2: ArrayLike, c_stray: ArrayLike) -> FloatA
         return as_float_array(a * b / (a + b) + as_float_array(c_stray))
 
 
+@quiet
 def equal_caps_for_load(c_load: ArrayLike, c_stray: ArrayLike) -> FloatArray:
     """Value of two equal load capacitors that give a required load capacitance.
 
@@ -92,6 +94,7 @@ def equal_caps_for_load(c_load: ArrayLike, c_stray: ArrayLike) -> FloatArray:
     return as_float_array(np.where(diff > 0.0, 2.0 * diff, np.nan))
 
 
+@quiet
 def load_offset_ppm(c_motional: ArrayLike, c_shunt: ArrayLike, c_load: ArrayLike) -> FloatArray:
     """Offset of the load-resonant frequency above the series resonance, ppm.
 
@@ -123,6 +126,7 @@ def load_offset_ppm(c_motional: ArrayLike, c_shunt: ArrayLike, c_load: ArrayLike
         return as_float_array(1e6 * as_float_array(c_motional) / (2.0 * total))
 
 
+@quiet
 def pulling_ppm(
     c_motional: ArrayLike, c_shunt: ArrayLike, c_load: ArrayLike, c_load_ref: ArrayLike
 ) -> FloatArray:
@@ -158,6 +162,7 @@ def pulling_ppm(
     )
 
 
+@quiet
 def pull_sensitivity_ppm_per_pf(
     c_motional: ArrayLike, c_shunt: ArrayLike, c_load: ArrayLike
 ) -> FloatArray:
@@ -190,6 +195,7 @@ def pull_sensitivity_ppm_per_pf(
         return as_float_array(-1e6 * as_float_array(c_motional) / (2.0 * total**2) * 1e-12)
 
 
+@quiet
 def load_resonance_exact(
     f_series: ArrayLike, c_motional: ArrayLike, c_shunt: ArrayLike, c_load: ArrayLike
 ) -> FloatArray:
@@ -231,6 +237,7 @@ def load_resonance_exact(
         return as_float_array(1.0 / (_TWO_PI * np.sqrt(inductance * c_eff)))
 
 
+@quiet
 def critical_gm(esr: ArrayLike, f: ArrayLike, c_shunt: ArrayLike, c_load: ArrayLike) -> FloatArray:
     """Transconductance at which a Pierce stage just sustains oscillation.
 
@@ -264,6 +271,7 @@ def critical_gm(esr: ArrayLike, f: ArrayLike, c_shunt: ArrayLike, c_load: ArrayL
     return as_float_array(4.0 * as_float_array(esr) * w**2 * total**2)
 
 
+@quiet
 def critical_gm_caps(
     esr: ArrayLike, f: ArrayLike, c_shunt: ArrayLike, c1: ArrayLike, c2: ArrayLike
 ) -> FloatArray:
@@ -310,6 +318,7 @@ def critical_gm_caps(
         return as_float_array(as_float_array(esr) * w**2 * total**2 * (a + b) ** 2 / (a * b))
 
 
+@quiet
 def gain_margin(gm: ArrayLike, gm_crit: ArrayLike) -> FloatArray:
     """Gain margin of a Pierce oscillator.
 
@@ -339,6 +348,7 @@ def gain_margin(gm: ArrayLike, gm_crit: ArrayLike) -> FloatArray:
         return as_float_array(as_float_array(gm) / as_float_array(gm_crit))
 
 
+@quiet
 def drive_level(
     esr: ArrayLike, f: ArrayLike, c_shunt: ArrayLike, c_load: ArrayLike, v_pp: ArrayLike
 ) -> FloatArray:
@@ -382,6 +392,7 @@ def drive_level(
     return as_float_array(as_float_array(esr) * i_rms**2)
 
 
+@quiet
 def series_resistor(f: ArrayLike, c2: ArrayLike) -> FloatArray:
     """Starting value of the drive-limiting resistor at the amplifier output.
 
@@ -410,6 +421,7 @@ def series_resistor(f: ArrayLike, c2: ArrayLike) -> FloatArray:
         return as_float_array(1.0 / (_TWO_PI * as_float_array(f) * as_float_array(c2)))
 
 
+@quiet
 def tuning_fork_ppm(
     temp_c: ArrayLike, turnover_c: ArrayLike = 25.0, k_ppm_per_k2: ArrayLike = -0.034
 ) -> FloatArray:
@@ -441,6 +453,7 @@ def tuning_fork_ppm(
     return as_float_array(as_float_array(k_ppm_per_k2) * dt**2)
 
 
+@quiet
 def budget_worst_case(*terms_ppm: ArrayLike) -> FloatArray:
     """Guaranteed frequency error: sum of the magnitudes of all terms.
 
@@ -468,6 +481,7 @@ def budget_worst_case(*terms_ppm: ArrayLike) -> FloatArray:
     return total
 
 
+@quiet
 def budget_rss(*terms_ppm: ArrayLike) -> FloatArray:
     """Statistical frequency error: root sum of squares of all terms.
 

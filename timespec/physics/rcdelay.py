@@ -15,11 +15,12 @@ from __future__ import annotations
 
 import numpy as np
 
-from timespec.physics._types import ArrayLike, FloatArray, as_float_array
+from timespec.physics._types import ArrayLike, FloatArray, as_float_array, quiet
 
 __all__ = ["charge_time", "delay", "effective_target", "threshold_from_time"]
 
 
+@quiet
 def effective_target(v_target: ArrayLike, r: ArrayLike, i_drain: ArrayLike = 0.0) -> FloatArray:
     """Voltage the capacitor node settles at when a drain current is drawn from it.
 
@@ -53,6 +54,7 @@ def effective_target(v_target: ArrayLike, r: ArrayLike, i_drain: ArrayLike = 0.0
         return as_float_array(np.where(i == 0.0, v, v - i * as_float_array(r)))
 
 
+@quiet
 def charge_time(
     r: ArrayLike,
     c: ArrayLike,
@@ -119,6 +121,7 @@ def charge_time(
     return as_float_array(np.where(is_nan, np.nan, t))
 
 
+@quiet
 def delay(
     r: ArrayLike,
     c: ArrayLike,
@@ -162,6 +165,7 @@ def delay(
     return charge_time(r, c, v, v_start, as_float_array(threshold_ratio) * v, i_drain)
 
 
+@quiet
 def threshold_from_time(
     t: ArrayLike,
     r: ArrayLike,

@@ -13,12 +13,13 @@ from __future__ import annotations
 
 import numpy as np
 
-from timespec.physics._types import ArrayLike, FloatArray, as_float_array
+from timespec.physics._types import ArrayLike, FloatArray, as_float_array, quiet
 from timespec.physics.rcdelay import charge_time
 
 __all__ = ["duty", "frequency", "high_time", "low_time", "period"]
 
 
+@quiet
 def high_time(
     r: ArrayLike,
     c: ArrayLike,
@@ -60,6 +61,7 @@ def high_time(
     return charge_time(r, c, v_high, vt_minus, vt_plus, i_drain)
 
 
+@quiet
 def low_time(
     r: ArrayLike,
     c: ArrayLike,
@@ -102,6 +104,7 @@ def low_time(
     return charge_time(r, c, v_low, vt_plus, vt_minus, i_drain)
 
 
+@quiet
 def period(
     r: ArrayLike,
     c: ArrayLike,
@@ -149,6 +152,7 @@ def period(
     return as_float_array(t_h + t_l)
 
 
+@quiet
 def frequency(
     r: ArrayLike,
     c: ArrayLike,
@@ -195,6 +199,7 @@ def frequency(
         return as_float_array(1.0 / t)
 
 
+@quiet
 def duty(
     r: ArrayLike,
     c: ArrayLike,

@@ -1,0 +1,230 @@
+"""One-shot family end to end: model, solver, worst case, design rules."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+import timespec
+from timespec.analysis import nominal_inputs
+from timespec.families import family
+from timespec.families.base import Design, capacitor_part, resistor_part
+from timespec.solver import evaluate_design, rank_key, solve_block
+
+SPEC = """
+defaults:
+  supply 12 V ±5%
+  ambient -10 degC to 60 degC
+  resistors E96 1% 50 ppm/K, 1k to 2M
+  capacitors E12 2% PP, 10n to 1u
+  timer cmos
+oneshot relay_hold:
+  width 150 ms ±8%
+  trigger 2 ms, spacing 1 s
+"""
+
+
+def block(text: str = SPEC, name: str | None = None) -> timespec.model.Block:
+    spec = timespec.parse(text)
+    return spec.block(name) if name else spec.blocks[0]
+
+
+def sample_box(factors: list, n: int, rng: np.random.Generator) -> dict[str, np.ndarray]:
+    return {f.name: rng.uniform(f.low, f.high, n) for f in factors}
+
+
+def test_solved_design_meets_and_is_standard() -> None:
+    res = solve_block(block())
+    assert res.verdict == "meets"
+    assert res.mode == "solved"
+    r, c = res.best.design.part("R"), res.best.design.part("C")  # type: ignore[union-attr]
+    # IEC 60063: chosen values are members of the policy's series.
+    assert timespec.series.is_member("E96", r.value)
+    assert timespec.series.is_member("E12", c.value)
+    out = res.best.output("width")  # type: ignore[union-attr]
+    assert 0.138 <= out.low <= out.nominal <= out.high <= 0.162
+
+
+def test_ln3_law_at_nominal_thresholds() -> None:
+    # Common practice / 555-type timer datasheets: t = R*C*ln 3 = 1.0986 RC at the 2/3 threshold.
+    blk = block()
+    fam = family("oneshot")
+    d = Design((resistor_part("R", 100e3, blk.resistors), capacitor_part("C", 1e-6, blk.capacitors)))
+    x = nominal_inputs(fam.factors(blk, d))
+    x["timer.ratio"] = np.array([2.0 / 3.0])
+    x["timer.ron"] = np.array([0.0])
+    x["timer.ith"] = np.array([0.0])
+    w = fam.evaluate(blk, "")(x)["width"][0]
+    assert w == pytest.approx(math.log(3.0) * 0.1, rel=1e-12)
+    assert w == pytest.approx(1.0986 * 0.1, rel=1e-4)
+
+
+def test_worst_case_encloses_dense_sweep() -> None:
+    # Extreme-value analysis must bound every point of the tolerance box (common practice).
+    blk = block()
+    res = solve_block(blk)
+    assert res.best is not None
+    fam = family("oneshot")
+    facs = fam.factors(blk, res.best.design)
+    rng = np.random.default_rng(7)
+    x = sample_box(facs, 200_000, rng)
+    w = fam.evaluate(blk, "")(x)["width"]
+    out = res.best.output("width")
+    assert w.min() >= out.low * (1 - 1e-12)
+    assert w.max() <= out.high * (1 + 1e-12)
+    # and the corners are reached: the sweep comes close to both ends
+    assert w.min() < out.low + 0.5 * (out.nominal - out.low)
+
+
+def test_matches_scipy_integration_at_the_extreme_corner() -> None:
+    # Independent route: integrate C dv/dt = (V - v)/R - i from the discharge start voltage
+    # with scipy's ODE solver and find the threshold crossing (scipy.integrate.solve_ivp).
+    from scipy.integrate import solve_ivp
+
+    blk = block()
+    res = solve_block(blk)
+    assert res.best is not None
+    out = res.best.output("width")
+    fam = family("oneshot")
+    facs = fam.factors(blk, res.best.design)
+    from timespec.analysis import worst_case
+
+    ex = worst_case(facs, fam.evaluate(blk, ""))["width"]
+    at = {f.name: f.nominal for f in facs} | dict(ex.high_at)
+    dt = at["temp"] - 25.0
+    r = at["R.value"] * (1 + at["R.tol"]) * (1 + at["R.tc"] * 1e-6 * dt)
+    c = at["C.value"] * (1 + at["C.tol"]) * (1 + at["C.tc"] * 1e-6 * dt)
+    v = at["supply"]
+    i = at["timer.ith"] + at.get("leak", 0.0)
+    ron = at["timer.ron"]
+    v0 = (v - i * r) * ron / (r + ron)  # node settles on the R / r_on divider, drain included
+    vth = at["timer.ratio"] * v
+
+    def rhs(_t: float, y: np.ndarray) -> list[float]:
+        return [((v - y[0]) / r - i) / c]
+
+    def hit(_t: float, y: np.ndarray) -> float:
+        return y[0] - vth
+
+    hit.terminal = True  # type: ignore[attr-defined]
+    sol = solve_ivp(rhs, (0, 10 * r * c), [v0], events=hit, rtol=1e-11, atol=1e-12, method="DOP853")
+    t_ode = sol.t_events[0][0]
+    scale = (1 + at["timer.drift"] * 1e-6 * dt) * (1 + at["timer.vco"] * (v - at["supply.nominal"]))
+    assert t_ode * scale == pytest.approx(out.high, rel=1e-7)
+
+
+@settings(max_examples=25, deadline=None)
+@given(k=st.floats(0.1, 10.0))
+def test_width_scales_with_capacitance(k: float) -> None:
+    # Scaling law of the RC charge (first-order RC law): t ∝ C when nothing else changes.
+    blk = block()
+    fam = family("oneshot")
+    d = Design((resistor_part("R", 100e3, blk.resistors), capacitor_part("C", 1e-7, blk.capacitors)))
+    x = nominal_inputs(fam.factors(blk, d))
+    w1 = fam.evaluate(blk, "")(x)["width"][0]
+    x["C.value"] = x["C.value"] * k
+    w2 = fam.evaluate(blk, "")(x)["width"][0]
+    assert w2 == pytest.approx(k * w1, rel=1e-12)
+
+
+def test_pinned_design_is_checked_not_chosen() -> None:
+    res = solve_block(block(SPEC + "  use R 619k, C 220n\n"))
+    assert res.mode == "checked"
+    assert res.verdict == "meets"
+    assert res.best is not None and res.best.design.part("R").pinned
+
+
+def test_pinned_design_that_misses_fails() -> None:
+    res = solve_block(block(SPEC + "  use R 560k, C 220n\n"))
+    assert res.mode == "checked"
+    assert res.verdict == "fails"
+
+
+def test_partly_pinned_chooses_the_rest() -> None:
+    res = solve_block(block(SPEC + "  use C 220n\n"))
+    assert res.mode == "solved"
+    assert res.best is not None
+    assert res.best.design.part("C").value == pytest.approx(220e-9)
+    assert not res.best.design.part("R").pinned
+    assert res.verdict == "meets"
+
+
+def test_infeasible_shows_the_closest_design() -> None:
+    text = SPEC.replace("width 150 ms ±8%", "width 150 ms ±2%")
+    res = solve_block(block(text))
+    assert res.verdict == "infeasible"
+    assert res.best is not None
+    out = res.best.output("width")
+    assert not out.meets
+    assert res.notes and "none of the" in res.notes[0]
+
+
+def test_trigger_longer_than_pulse_is_a_rule_error() -> None:
+    text = SPEC.replace("trigger 2 ms, spacing 1 s", "trigger 200 ms")
+    res = solve_block(block(text))
+    assert res.best is not None
+    codes = [f.code for f in res.best.findings]
+    assert "trigger-outlasts-pulse" in codes
+    assert res.verdict != "meets"
+
+
+def test_retrigger_before_recovery_is_a_rule_error() -> None:
+    text = SPEC.replace("spacing 1 s", "spacing 100 ms")
+    res = solve_block(block(text))
+    assert res.best is not None
+    assert "retrigger-before-recovery" in [f.code for f in res.best.findings]
+
+
+def test_leakage_that_stalls_the_charge_is_reported() -> None:
+    # With 20 µA drawn from the node, 2 MΩ can never lift it to 2/3 of 11.4 V.
+    text = SPEC + "  leakage 20 uA max\n  use R 2M, C 68n\n"
+    res = solve_block(block(text))
+    assert res.best is not None
+    assert "drain-stalls-charge" in [f.code for f in res.best.findings]
+    assert res.verdict == "fails"
+    assert math.isinf(res.best.output("width").high)
+
+
+def test_class2_dielectric_is_flagged() -> None:
+    text = SPEC.replace("capacitors E12 2% PP, 10n to 1u", "capacitors E6 10% X7R, 10n to 10u")
+    text = text.replace("±8%", "±40%")
+    res = solve_block(block(text))
+    assert res.best is not None
+    assert "imprecise-dielectric" in [f.code for f in res.best.findings]
+
+
+def test_solver_agrees_with_brute_force_on_all_pairs() -> None:
+    # The analytic narrowing must find the same best design as trying every pair.
+    text = SPEC.replace("1k to 2M", "100k to 1M").replace("10n to 1u", "100n to 470n")
+    blk = block(text)
+    res = solve_block(blk)
+    assert res.best is not None
+    rs = timespec.series.values_between("E96", 100e3, 1e6)
+    cs = timespec.series.values_between("E12", 100e-9, 470e-9)
+    every = [
+        evaluate_design(
+            blk, Design((resistor_part("R", float(r), blk.resistors), capacitor_part("C", float(c), blk.capacitors)))
+        )
+        for r in rs
+        for c in cs
+    ]
+    brute = min(every, key=rank_key)
+    assert [p.value for p in brute.design.parts] == [p.value for p in res.best.design.parts]
+
+
+def test_control_voltage_sets_the_threshold() -> None:
+    # Control pin forced: t = R*C*ln(V/(V - Vc)) (555-type timer datasheets).
+    text = SPEC + "  control 6 V ±1%\n  use R 619k, C 220n\n"
+    blk = block(text)
+    fam = family("oneshot")
+    res = solve_block(blk)
+    assert res.best is not None
+    x = nominal_inputs(fam.factors(blk, res.best.design))
+    x["timer.ron"] = np.array([0.0])
+    x["timer.ith"] = np.array([0.0])
+    w = fam.evaluate(blk, "")(x)["width"][0]
+    assert w == pytest.approx(619e3 * 220e-9 * math.log(12.0 / 6.0), rel=1e-12)

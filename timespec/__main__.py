@@ -1,0 +1,5 @@
+"""``python -m timespec`` runs the command-line tool."""
+
+from timespec.cli import main
+
+raise SystemExit(main())

@@ -1,0 +1,275 @@
+"""The JSON document of a solved spec: a versioned contract other tools rely on.
+
+Layout (``format_version`` 1)::
+
+    {
+      "format": "timespec-result",
+      "format_version": 1,
+      "timespec_version": "0.1.0",
+      "spec": "examples/burn_in_rack.tspec",
+      "ok": true,
+      "blocks": [
+        {
+          "name": "relay_hold", "kind": "oneshot",
+          "verdict": "meets" | "fails" | "infeasible",
+          "mode": "solved" | "checked",
+          "quantity": "width", "unit": "s",
+          "required": {"low": 0.138, "high": 0.162},
+          "nominal": 0.1496,
+          "worst_case": {"low": 0.1383, "high": 0.1616,
+                         "low_corner": "...", "high_corner": "..."},
+          "parts": [{"ref": "R", "value": 619000.0, "unit": "ohm", "series": "E96",
+                     "tolerance": 0.01, "tempco_ppm": 50.0, "dielectric": null,
+                     "pinned": false, "pair": null}, ...],
+          "circuit": "",
+          "outputs": [ {"name", "unit", "required", "nominal", "worst_case", "meets"}, ... ],
+          "findings": [{"severity", "code", "message"}],
+          "statistics": {"rss": {...}, "monte_carlo": {...}} | null,
+          "contributors": {"width": [{"name", "label", "share", "sensitivity"}]},
+          "alternatives": [{"circuit", "parts", "outputs", "reason"}],
+          "fixes": [{"kind", "what", "cost"}],
+          "notes": ["..."]
+        }
+      ]
+    }
+
+All values are floats in SI base units (s, Hz, ohm, F, V, A, W; ratios as
+fractions, so 50 ppm is 5e-05).  ``quantity``/``required``/``nominal``/
+``worst_case`` describe the block's first requirement; ``outputs`` lists every
+computed quantity.  Infinite values (a bound, or a threshold never reached)
+are written as ``null``.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from collections.abc import Mapping
+from typing import Any
+
+from timespec import __version__
+from timespec.families.base import Part
+from timespec.result import BlockResult, Candidate, OutputResult, Result
+from timespec.units import kind_symbol
+
+__all__ = ["FORMAT_VERSION", "result_to_dict", "result_to_json"]
+
+#: Bumped when a key changes meaning or disappears; adding keys does not bump it.
+FORMAT_VERSION = 1
+
+
+def _num(x: float) -> float | None:
+    return float(x) if math.isfinite(x) else None
+
+
+def _unit(kind: str) -> str:
+    try:
+        return kind_symbol(kind)
+    except KeyError:
+        return ""
+
+
+def _part(p: Part) -> dict[str, Any]:
+    pair = getattr(p, "pair", None)
+    return {
+        "ref": p.ref,
+        "value": p.value,
+        "unit": _unit(p.kind),
+        "series": p.series,
+        "tolerance": p.tolerance,
+        "tempco_ppm": p.tempco_ppm,
+        "dielectric": p.dielectric,
+        "pinned": p.pinned,
+        "pair": (
+            {"a": pair[0], "b": pair[1], "how": pair[2]} if pair else None
+        ),
+    }
+
+
+def _output(o: OutputResult) -> dict[str, Any]:
+    return {
+        "name": o.name,
+        "unit": _unit(o.kind),
+        "required": (
+            {"low": _num(o.required.low), "high": _num(o.required.high)} if o.required else None
+        ),
+        "nominal": _num(o.nominal),
+        "worst_case": {
+            "low": _num(o.low),
+            "high": _num(o.high),
+            "low_corner": o.low_corner,
+            "high_corner": o.high_corner,
+        },
+        "meets": o.meets,
+    }
+
+
+def _candidate(c: Candidate) -> dict[str, Any]:
+    return {
+        "circuit": c.design.variant,
+        "parts": [_part(p) for p in c.design.parts],
+        "outputs": [_output(o) for o in c.outputs],
+        "meets": c.meets,
+        "reason": c.rank_reason,
+    }
+
+
+def _statistics(b: BlockResult) -> dict[str, Any] | None:
+    if not b.rss and b.monte_carlo is None:
+        return None
+    out: dict[str, Any] = {
+        "rss": {name: {"nominal": _num(r.nominal), "sigma": _num(r.sigma)} for name, r in b.rss.items()}
+    }
+    mc = b.monte_carlo
+    if mc is not None:
+        out["monte_carlo"] = {
+            "samples": mc.samples,
+            "seed": mc.seed,
+            "yield": mc.yield_fraction,
+            "yield_interval": list(mc.yield_interval),
+            "passed": mc.passed,
+            "outputs": {
+                name: {
+                    "mean": _num(s.mean),
+                    "std": _num(s.std),
+                    "min": _num(s.minimum),
+                    "max": _num(s.maximum),
+                    "percentiles": {f"{k:g}": _num(v) for k, v in s.percentiles.items()},
+                    "within": s.within,
+                    "cpk": _num(s.cpk) if s.cpk is not None else None,
+                }
+                for name, s in mc.outputs.items()
+            },
+        }
+    else:
+        out["monte_carlo"] = None
+    return out
+
+
+def _contributors(b: BlockResult) -> dict[str, list[dict[str, Any]]]:
+    return {
+        name: [
+            {
+                "name": c.name,
+                "label": c.label,
+                "share": _num(c.share),
+                "sensitivity": _num(c.sensitivity),
+            }
+            for c in r.contributions
+        ]
+        for name, r in b.rss.items()
+    }
+
+
+def block_to_dict(b: BlockResult) -> dict[str, Any]:
+    """The JSON object of one block.
+
+    Parameters
+    ----------
+    b
+        The block's result.
+
+    Returns
+    -------
+    dict
+        JSON-ready mapping (see the module docstring for the layout).
+    """
+    best = b.best
+    first = b.block.requirements[0] if b.block.requirements else None
+    primary: OutputResult | None = None
+    if best is not None and first is not None:
+        primary = best.output(first.quantity)
+    fixes = b.extra.get("fixes", ())
+    doc: dict[str, Any] = {
+        "name": b.block.name,
+        "kind": b.block.kind,
+        "verdict": b.verdict,
+        "mode": b.mode,
+        "quantity": first.quantity if first else None,
+        "unit": _unit(first.window.kind) if first else None,
+        "required": (
+            {"low": _num(first.window.low), "high": _num(first.window.high)} if first else None
+        ),
+        "nominal": _num(primary.nominal) if primary else None,
+        "worst_case": (
+            {
+                "low": _num(primary.low),
+                "high": _num(primary.high),
+                "low_corner": primary.low_corner,
+                "high_corner": primary.high_corner,
+            }
+            if primary
+            else None
+        ),
+        "parts": [_part(p) for p in best.design.parts] if best else [],
+        "circuit": best.design.variant if best else "",
+        "outputs": [_output(o) for o in best.outputs] if best else [],
+        "findings": [
+            {"severity": f.severity, "code": f.code, "message": f.message}
+            for f in (best.findings if best else ())
+        ],
+        "statistics": _statistics(b),
+        "contributors": _contributors(b),
+        "alternatives": [_candidate(c) for c in b.alternatives],
+        "fixes": [
+            {
+                "kind": getattr(f, "kind", ""),
+                "what": getattr(f, "what", str(f)),
+                "cost": getattr(f, "cost", None),
+            }
+            for f in fixes
+        ],
+        "notes": list(b.notes),
+    }
+    return doc
+
+
+def result_to_dict(result: Result) -> dict[str, Any]:
+    """The whole JSON document as a mapping.
+
+    Parameters
+    ----------
+    result
+        The solved spec.
+
+    Returns
+    -------
+    dict
+        JSON-ready mapping.
+    """
+    return {
+        "format": "timespec-result",
+        "format_version": FORMAT_VERSION,
+        "timespec_version": __version__,
+        "spec": result.spec.path,
+        "ok": result.ok,
+        "blocks": [block_to_dict(b) for b in result.blocks],
+    }
+
+
+def result_to_json(result: Result, *, indent: int | None = 2) -> str:
+    """The JSON document as text (strict JSON: no NaN or Infinity).
+
+    Parameters
+    ----------
+    result
+        The solved spec.
+    indent
+        Indentation, or ``None`` for one line.
+
+    Returns
+    -------
+    str
+        The document, ending with a newline.
+    """
+    return json.dumps(_clean(result_to_dict(result)), indent=indent, allow_nan=False) + "\n"
+
+
+def _clean(obj: Any) -> Any:
+    if isinstance(obj, float):
+        return obj if math.isfinite(obj) else None
+    if isinstance(obj, Mapping):
+        return {str(k): _clean(v) for k, v in obj.items()}
+    if isinstance(obj, list | tuple):
+        return [_clean(v) for v in obj]
+    return obj
