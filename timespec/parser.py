@@ -15,12 +15,13 @@ from __future__ import annotations
 
 import functools
 import re
+import threading
 from dataclasses import dataclass
 from importlib import resources
 from pathlib import Path
 from typing import Any
 
-from lark import Lark, Token, Transformer, Tree, v_args
+from lark import Lark, Token, Transformer
 from lark.exceptions import (
     UnexpectedCharacters,
     UnexpectedEOF,
@@ -114,13 +115,25 @@ def grammar_text() -> str:
 
 @functools.cache
 def _lark() -> Lark:
-    return Lark(
+    """The plain parser (builds a lark tree); the benchmarks' baseline."""
+    return Lark(grammar_text(), parser="lalr", lexer="contextual", maybe_placeholders=False)
+
+
+_LOCK = threading.Lock()
+
+
+@functools.cache
+def _inline() -> tuple[Lark, _Builder]:
+    """The parser with the builder applied during parsing (no intermediate tree)."""
+    builder = _Builder()
+    parser = Lark(
         grammar_text(),
         parser="lalr",
         lexer="contextual",
-        propagate_positions=True,
         maybe_placeholders=False,
+        transformer=builder,
     )
+    return parser, builder
 
 
 # Characters that look alike but that pint or the grammar would not take.
@@ -136,8 +149,13 @@ _PER_YEAR = re.compile(r"^(?P<num>.+)/(years?|yr|a)$")
 class _Builder(Transformer[Token, Any]):
     """Turn the lark tree into entries.  One method per grammar rule."""
 
-    def __init__(self, path: str | None, lines: list[str]) -> None:
+    def __init__(self) -> None:
         super().__init__()
+        self._path: str | None = None
+        self._lines: list[str] = []
+
+    def reset(self, path: str | None, lines: list[str]) -> None:
+        """Set the file name and lines of the text about to be parsed."""
         self._path = path
         self._lines = lines
 
@@ -148,9 +166,6 @@ class _Builder(Transformer[Token, Any]):
 
     def _tpos(self, tok: Token) -> Pos:
         return self._pos(tok.line or 1, tok.column or 1)
-
-    def _mpos(self, meta: Any) -> Pos:
-        return self._pos(getattr(meta, "line", 1), getattr(meta, "column", 1))
 
     # -- structure ----------------------------------------------------------
     def start(self, children: list[Any]) -> list[Entry]:
@@ -190,48 +205,40 @@ class _Builder(Transformer[Token, Any]):
     def text(self, children: list[Token]) -> Text:
         return Text(str(children[0])[1:-1], self._tpos(children[0]))
 
-    @v_args(meta=True)
-    def toleranced(self, meta: Any, children: list[Any]) -> Toleranced:
-        return Toleranced(children[0], children[1], self._mpos(meta))
+    def toleranced(self, children: list[Any]) -> Toleranced:
+        return Toleranced(children[0], children[1], children[0].pos)
 
-    @v_args(meta=True)
-    def range(self, meta: Any, children: list[Any]) -> Range:
-        return Range(children[0], children[1], self._mpos(meta))
+    def range(self, children: list[Any]) -> Range:
+        return Range(children[0], children[1], children[0].pos)
 
-    @v_args(meta=True)
-    def fraction_range(self, meta: Any, children: list[Any]) -> Fraction:
-        pos = self._mpos(meta)
+    def fraction_range(self, children: list[Any]) -> Fraction:
+        pos = children[0].pos
         return Fraction(Range(children[0], children[1], pos), str(children[2]), pos)
 
-    @v_args(meta=True)
-    def fraction_toleranced(self, meta: Any, children: list[Any]) -> Fraction:
-        pos = self._mpos(meta)
+    def fraction_toleranced(self, children: list[Any]) -> Fraction:
+        pos = children[0].pos
         return Fraction(Toleranced(children[0], children[1], pos), str(children[2]), pos)
 
-    @v_args(meta=True)
-    def fraction(self, meta: Any, children: list[Any]) -> Fraction:
-        return Fraction(children[0], str(children[1]), self._mpos(meta))
+    def fraction(self, children: list[Any]) -> Fraction:
+        return Fraction(children[0], str(children[1]), children[0].pos)
 
-    @v_args(meta=True)
-    def at_least(self, meta: Any, children: list[Any]) -> Bound:
-        return Bound(children[0], "min", self._mpos(meta))
+    def at_least(self, children: list[Any]) -> Bound:
+        return Bound(children[0], "min", children[0].pos)
 
-    @v_args(meta=True)
-    def at_most(self, meta: Any, children: list[Any]) -> Bound:
-        return Bound(children[0], "max", self._mpos(meta))
+    def at_most(self, children: list[Any]) -> Bound:
+        return Bound(children[0], "max", children[0].pos)
 
     def bare_tolerance(self, children: list[Any]) -> Tolerance:
         tol: Tolerance = children[0]
         return tol
 
-    @v_args(meta=True)
-    def tol_symmetric(self, meta: Any, children: list[Any]) -> Tolerance:
+    def tol_symmetric(self, children: list[Any]) -> Tolerance:
         q: Quantity = children[1]
-        return Tolerance(q, q, self._mpos(meta))
+        return Tolerance(q, q, self._tpos(children[0]))
 
-    @v_args(meta=True)
-    def tol_asymmetric(self, meta: Any, children: list[Any]) -> Tolerance:
-        return Tolerance(children[1], children[0], self._mpos(meta))
+    def tol_asymmetric(self, children: list[Any]) -> Tolerance:
+        p = children[0].pos
+        return Tolerance(children[1], children[0], Pos(p.path, p.line, max(1, p.column - 1), p.source_line))
 
     # -- quantities ----------------------------------------------------------
     def _quantity(self, number: Token, unit: Token | None, sign: float, start: Token) -> Quantity:
@@ -439,15 +446,16 @@ def parse_entries(text: str, path: str | None = None) -> list[Entry]:
     if text and not text.endswith("\n"):
         text += "\n"
     lines = text.splitlines()
-    try:
-        tree: Tree[Token] = _lark().parse(text)
-    except UnexpectedInput as exc:
-        raise _convert_lark_error(exc, text, path) from None
-    try:
-        entries: list[Entry] = _Builder(path, lines).transform(tree)
-    except VisitError as exc:
-        inner = exc.orig_exc
-        if isinstance(inner, SpecError):
-            raise inner from None
-        raise SpecSyntaxError(f"could not read the spec: {inner}", path=path) from None
+    parser, builder = _inline()
+    with _LOCK:
+        builder.reset(path, lines)
+        try:
+            entries: list[Entry] = parser.parse(text)  # type: ignore[assignment]
+        except UnexpectedInput as exc:
+            raise _convert_lark_error(exc, text, path) from None
+        except VisitError as exc:
+            inner = exc.orig_exc
+            if isinstance(inner, SpecError):
+                raise inner from None
+            raise SpecSyntaxError(f"could not read the spec: {inner}", path=path) from None
     return entries
