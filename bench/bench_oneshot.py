@@ -64,13 +64,20 @@ def brute_force(block: timespec.model.Block) -> Design:
     cs = timespec.series.values_between("E12", block.capacitors.low, block.capacitors.high)
     rr, cc = np.meshgrid(rs, cs, indexing="ij")
     rr, cc = rr.ravel(), cc.ravel()
-    template = Design((resistor_part("R", 1.0, block.resistors), capacitor_part("C", 1.0, block.capacitors)))
+    template = Design(
+        (resistor_part("R", 1.0, block.resistors), capacitor_part("C", 1.0, block.capacitors))
+    )
     facs = fam.factors(block, template)
     many = worst_case_many(facs, fam.evaluate(block, ""), {"R.value": rr, "C.value": cc})
     best_key = None
     best: Design | None = None
     for r, c, ex in zip(rr, cc, many, strict=True):
-        d = Design((resistor_part("R", float(r), block.resistors), capacitor_part("C", float(c), block.capacitors)))
+        d = Design(
+            (
+                resistor_part("R", float(r), block.resistors),
+                capacitor_part("C", float(c), block.capacitors),
+            )
+        )
         key = rank_key(_candidate(block, d, fam, fam.factors(block, d), ex))
         if best_key is None or key < best_key:
             best_key, best = key, d
@@ -91,8 +98,10 @@ def bench_solve() -> bool:
     print(f"one-shot solve (E96 x E12, worst case): {t_solve * 1e3:.2f} ms   target <= 5 ms")
     print(f"  brute force over all pairs:          {t_brute * 1e3:.0f} ms")
     print(f"  ratio brute/solve:                   {t_brute / t_solve:.0f}x")
-    print(f"  same best design:                    {same} "
-          f"({', '.join(f'{p.ref}={p.value:g}' for p in ours.design.parts)})")
+    print(
+        f"  same best design:                    {same} "
+        f"({', '.join(f'{p.ref}={p.value:g}' for p in ours.design.parts)})"
+    )
     return same
 
 
@@ -109,10 +118,14 @@ def bench_import() -> None:
     lazy = run("import timespec")
     full = run("import timespec; timespec.parse('oneshot a: width 1 ms ±5% at supply 5 V')")
     print(f"interpreter start (baseline):          {bare * 1e3:.0f} ms")
-    print(f"import timespec:                       {(lazy - bare) * 1e3:.0f} ms over baseline "
-          f"(ratio {lazy / bare:.2f})   target <= 300 ms")
-    print(f"import + first parse (lark, pint):     {(full - bare) * 1e3:.0f} ms over baseline "
-          f"(ratio {full / bare:.2f})")
+    print(
+        f"import timespec:                       {(lazy - bare) * 1e3:.0f} ms over baseline "
+        f"(ratio {lazy / bare:.2f})   target <= 300 ms"
+    )
+    print(
+        f"import + first parse (lark, pint):     {(full - bare) * 1e3:.0f} ms over baseline "
+        f"(ratio {full / bare:.2f})"
+    )
 
 
 def bench_parse() -> None:
@@ -133,10 +146,14 @@ def bench_parse() -> None:
     t_ours = best_of(lambda: timespec.parse(text), 3)
     t_lark = best_of(lambda: _lark().parse(text), 3)
     rate = statements / t_ours
-    print(f"parse {statements} statements:           {t_ours * 1e3:.0f} ms = {rate:,.0f} statements/s"
-          "   target >= 20,000/s")
-    print(f"  lark parse alone (baseline):         {t_lark * 1e3:.0f} ms; ratio ours/lark "
-          f"{t_ours / t_lark:.2f}")
+    print(
+        f"parse {statements} statements:           {t_ours * 1e3:.0f} ms = {rate:,.0f} statements/s"
+        "   target >= 20,000/s"
+    )
+    print(
+        f"  lark parse alone (baseline):         {t_lark * 1e3:.0f} ms; ratio ours/lark "
+        f"{t_ours / t_lark:.2f}"
+    )
 
 
 def main() -> int:

@@ -38,8 +38,17 @@ def test_json_contract() -> None:
     assert doc["format"] == "timespec-result" and doc["format_version"] == 1
     assert isinstance(doc["blocks"], list) and doc["blocks"]
     for block in doc["blocks"]:
-        for key in ("name", "kind", "verdict", "quantity", "unit", "required", "nominal",
-                    "worst_case", "parts"):
+        for key in (
+            "name",
+            "kind",
+            "verdict",
+            "quantity",
+            "unit",
+            "required",
+            "nominal",
+            "worst_case",
+            "parts",
+        ):
             assert key in block
         assert block["verdict"] in ("meets", "fails", "infeasible")
         assert set(block["required"]) == {"low", "high"}
@@ -129,7 +138,11 @@ def test_python_dash_m_entry_point() -> None:
     env = dict(os.environ, PYTHONPATH=str(ROOT))
     proc = subprocess.run(
         [sys.executable, "-m", "timespec", "check", str(DEMO)],
-        capture_output=True, text=True, env=env, cwd=ROOT, check=False,
+        capture_output=True,
+        text=True,
+        env=env,
+        cwd=ROOT,
+        check=False,
     )
     assert proc.returncode == 0, proc.stderr
     assert "blocks meet their requirements" in proc.stdout

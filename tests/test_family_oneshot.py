@@ -53,7 +53,9 @@ def test_ln3_law_at_nominal_thresholds() -> None:
     # Common practice / 555-type timer datasheets: t = R*C*ln 3 = 1.0986 RC at the 2/3 threshold.
     blk = block()
     fam = family("oneshot")
-    d = Design((resistor_part("R", 100e3, blk.resistors), capacitor_part("C", 1e-6, blk.capacitors)))
+    d = Design(
+        (resistor_part("R", 100e3, blk.resistors), capacitor_part("C", 1e-6, blk.capacitors))
+    )
     x = nominal_inputs(fam.factors(blk, d))
     x["timer.ratio"] = np.array([2.0 / 3.0])
     x["timer.ron"] = np.array([0.0])
@@ -123,7 +125,9 @@ def test_width_scales_with_capacitance(k: float) -> None:
     # Scaling law of the RC charge (first-order RC law): t ∝ C when nothing else changes.
     blk = block()
     fam = family("oneshot")
-    d = Design((resistor_part("R", 100e3, blk.resistors), capacitor_part("C", 1e-7, blk.capacitors)))
+    d = Design(
+        (resistor_part("R", 100e3, blk.resistors), capacitor_part("C", 1e-7, blk.capacitors))
+    )
     x = nominal_inputs(fam.factors(blk, d))
     w1 = fam.evaluate(blk, "")(x)["width"][0]
     x["C.value"] = x["C.value"] * k
@@ -207,7 +211,13 @@ def test_solver_agrees_with_brute_force_on_all_pairs() -> None:
     cs = timespec.series.values_between("E12", 100e-9, 470e-9)
     every = [
         evaluate_design(
-            blk, Design((resistor_part("R", float(r), blk.resistors), capacitor_part("C", float(c), blk.capacitors)))
+            blk,
+            Design(
+                (
+                    resistor_part("R", float(r), blk.resistors),
+                    capacitor_part("C", float(c), blk.capacitors),
+                )
+            ),
         )
         for r in rs
         for c in cs

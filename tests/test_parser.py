@@ -122,7 +122,9 @@ def test_comments_blank_lines_and_indentation_are_free() -> None:
 
 
 def test_timer_class_and_overrides() -> None:
-    b = one(BASE + "oneshot a: width 1 ms ±10%; timer cmos, initial ±2%, drift ±100 ppm/K").blocks[0]
+    b = one(BASE + "oneshot a: width 1 ms ±10%; timer cmos, initial ±2%, drift ±100 ppm/K").blocks[
+        0
+    ]
     assert b.timer is not None
     assert (b.timer.name, b.timer.initial, b.timer.drift_ppm) == ("cmos", 0.02, 100.0)
 
@@ -338,8 +340,10 @@ def test_errors_are_value_errors_and_picklable() -> None:
 
 
 ALPHABET = st.sampled_from(
-    list("abcdefghijklmnopqrstuvwxyz0123456789 \n\t:;,.+-±%#\"/µΩ°")
-    + ["oneshot ", "width ", "ms", " to ", "supply ", "V", "use ", "R ", "4k7", "±5%", "\n  "]
+    [
+        *'abcdefghijklmnopqrstuvwxyz0123456789 \n\t:;,.+-±%#"/µΩ°',
+        *["oneshot ", "width ", "ms", " to ", "supply ", "V", "use ", "R ", "4k7", "±5%", "\n  "],
+    ]
 )
 
 

@@ -17,8 +17,18 @@ def wheel(tmp_path_factory: pytest.TempPathFactory) -> Path:
     pytest.importorskip("hatchling")
     out = tmp_path_factory.mktemp("dist")
     subprocess.run(
-        [sys.executable, "-m", "pip", "wheel", "--no-deps", "--no-build-isolation",
-         "--quiet", "-w", str(out), str(ROOT)],
+        [
+            sys.executable,
+            "-m",
+            "pip",
+            "wheel",
+            "--no-deps",
+            "--no-build-isolation",
+            "--quiet",
+            "-w",
+            str(out),
+            str(ROOT),
+        ],
         check=True,
     )
     (built,) = out.glob("timespec-*.whl")
@@ -45,7 +55,10 @@ def test_wheel_parses_a_spec_without_the_source_tree(wheel: Path, tmp_path: Path
     # Run from an empty folder so that the checkout's grammar/ cannot be found.
     proc = subprocess.run(
         [sys.executable, "-c", code, str(site)],
-        capture_output=True, text=True, cwd=tmp_path, check=False,
+        capture_output=True,
+        text=True,
+        cwd=tmp_path,
+        check=False,
         env={"PATH": "/usr/bin:/bin", "PYTHONNOUSERSITE": "1"},
     )
     assert proc.returncode == 0, proc.stderr

@@ -100,7 +100,9 @@ def solve(
         When ``samples`` or ``seed`` is out of range.
     """
     if not isinstance(spec, Spec):
-        raise UsageError(f"solve() takes a Spec (from timespec.parse or load), not {type(spec).__name__}")
+        raise UsageError(
+            f"solve() takes a Spec (from timespec.parse or load), not {type(spec).__name__}"
+        )
     if samples is not None and samples < 1:
         raise UsageError("samples must be at least 1")
     if seed is not None and seed < 0:

@@ -56,17 +56,26 @@ def _build_parser() -> argparse.ArgumentParser:
 
     def common(p: argparse.ArgumentParser) -> None:
         p.add_argument("spec", metavar="FILE", help="the .tspec file")
-        p.add_argument("--output", "-o", metavar="PATH",
-                       help="write to PATH (atomically) instead of standard output")
+        p.add_argument(
+            "--output",
+            "-o",
+            metavar="PATH",
+            help="write to PATH (atomically) instead of standard output",
+        )
 
     p_solve = sub.add_parser("solve", help="choose parts and print the report")
     common(p_solve)
     p_solve.add_argument("--json", action="store_true", help="print the JSON document")
-    p_solve.add_argument("--samples", type=_positive_int, metavar="N",
-                         help="Monte Carlo samples (default: the spec's, else 20000)")
+    p_solve.add_argument(
+        "--samples",
+        type=_positive_int,
+        metavar="N",
+        help="Monte Carlo samples (default: the spec's, else 20000)",
+    )
     p_solve.add_argument("--seed", type=_seed, metavar="N", help="Monte Carlo seed")
-    p_solve.add_argument("--no-statistics", action="store_true",
-                         help="worst case only: skip RSS and Monte Carlo")
+    p_solve.add_argument(
+        "--no-statistics", action="store_true", help="worst case only: skip RSS and Monte Carlo"
+    )
 
     p_check = sub.add_parser("check", help="verify every block; exit 1 if any does not meet")
     common(p_check)
@@ -74,8 +83,13 @@ def _build_parser() -> argparse.ArgumentParser:
 
     p_table = sub.add_parser("table", help="part-value table for documentation")
     common(p_table)
-    p_table.add_argument("--format", "-f", choices=("markdown", "rest", "csv"),
-                         default="markdown", help="table format (default markdown)")
+    p_table.add_argument(
+        "--format",
+        "-f",
+        choices=("markdown", "rest", "csv"),
+        default="markdown",
+        help="table format (default markdown)",
+    )
     return parser
 
 

@@ -265,4 +265,3 @@ def gate_class(name: str) -> GateClass:
         When the name is unknown.
     """
     return GATE_CLASSES[name.lower()]
-

@@ -10,10 +10,10 @@ from __future__ import annotations
 
 __all__ = [
     "SpecError",
-    "SpecSyntaxError",
-    "SpecValueError",
-    "SpecUnitError",
     "SpecIncludeError",
+    "SpecSyntaxError",
+    "SpecUnitError",
+    "SpecValueError",
     "UsageError",
 ]
 
@@ -98,9 +98,7 @@ def _rebuild(
     source_line: str | None,
     hint: str | None,
 ) -> SpecError:
-    return cls(
-        message, path=path, line=line, column=column, source_line=source_line, hint=hint
-    )
+    return cls(message, path=path, line=line, column=column, source_line=source_line, hint=hint)
 
 
 class SpecSyntaxError(SpecError):
@@ -108,7 +106,7 @@ class SpecSyntaxError(SpecError):
 
 
 class SpecValueError(SpecError):
-    """A statement is well formed but its values make no sense (inverted range, negative tolerance)."""
+    """A statement is well formed but its values make no sense (an inverted range, say)."""
 
 
 class SpecUnitError(SpecError):

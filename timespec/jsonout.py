@@ -80,9 +80,7 @@ def _part(p: Part) -> dict[str, Any]:
         "tempco_ppm": p.tempco_ppm,
         "dielectric": p.dielectric,
         "pinned": p.pinned,
-        "pair": (
-            {"a": pair[0], "b": pair[1], "how": pair[2]} if pair else None
-        ),
+        "pair": ({"a": pair[0], "b": pair[1], "how": pair[2]} if pair else None),
     }
 
 
@@ -118,7 +116,9 @@ def _statistics(b: BlockResult) -> dict[str, Any] | None:
     if not b.rss and b.monte_carlo is None:
         return None
     out: dict[str, Any] = {
-        "rss": {name: {"nominal": _num(r.nominal), "sigma": _num(r.sigma)} for name, r in b.rss.items()}
+        "rss": {
+            name: {"nominal": _num(r.nominal), "sigma": _num(r.sigma)} for name, r in b.rss.items()
+        }
     }
     mc = b.monte_carlo
     if mc is not None:

@@ -238,7 +238,9 @@ class _Builder(Transformer[Token, Any]):
 
     def tol_asymmetric(self, children: list[Any]) -> Tolerance:
         p = children[0].pos
-        return Tolerance(children[1], children[0], Pos(p.path, p.line, max(1, p.column - 1), p.source_line))
+        return Tolerance(
+            children[1], children[0], Pos(p.path, p.line, max(1, p.column - 1), p.source_line)
+        )
 
     # -- quantities ----------------------------------------------------------
     def _quantity(self, number: Token, unit: Token | None, sign: float, start: Token) -> Quantity:
@@ -300,7 +302,12 @@ class _Builder(Transformer[Token, Any]):
         unit = children[1] if len(children) > 1 else None
         q = self._quantity(children[0], unit, -1.0, children[0])
         pos = q.pos
-        return Quantity(q.value, q.kind, q.text, Pos(pos.path, pos.line, max(1, pos.column - 1), pos.source_line))
+        return Quantity(
+            q.value,
+            q.kind,
+            q.text,
+            Pos(pos.path, pos.line, max(1, pos.column - 1), pos.source_line),
+        )
 
     def rkm(self, children: list[Token]) -> Quantity:
         tok = children[0]
@@ -315,9 +322,7 @@ def _adjacent(first: Token, second: Token) -> bool:
     return first.end_pos is not None and first.end_pos == second.start_pos
 
 
-def _positioned(
-    cls: type[SpecError], message: str, pos: Pos, hint: str | None
-) -> SpecError:
+def _positioned(cls: type[SpecError], message: str, pos: Pos, hint: str | None) -> SpecError:
     return cls(
         message,
         path=pos.path,
@@ -332,7 +337,7 @@ _TERMINAL_NAMES = {
     "NUMBER": "a number",
     "UNIT": "a unit",
     "WORD": "a word",
-    "STRING": 'a quoted file name',
+    "STRING": "a quoted file name",
     "RKM": "a value such as 4k7",
     "PLUSMINUS": "±",
     "_NL": "the end of the line",
@@ -373,8 +378,11 @@ def _syntax_hint(line: str, column: int, got: str) -> str | None:
         return "a block header is '<kind> <name>:' on a line of its own, e.g. 'oneshot relay_hold:'"
     if before.endswith(" to") or before.endswith("\tto"):
         return "a range needs both ends, e.g. '20 ms to 40 ms'"
-    if got == "." :
-        return "write decimals with a digit before the point, e.g. 0.5, and RKM codes without one, e.g. 4k7"
+    if got == ".":
+        return (
+            "write decimals with a digit before the point, e.g. 0.5, "
+            "and RKM codes without one, e.g. 4k7"
+        )
     if got and (got[0].isdigit() or got[0] == "-") and re.search(r"[A-Za-z]$", before):
         return None
     if got == ",":

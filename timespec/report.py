@@ -10,21 +10,29 @@ from __future__ import annotations
 
 import math
 import textwrap
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
+from typing import Literal
 
 from timespec import __version__
-from timespec.families.base import Part
-from timespec.fmt import format_part_value, format_quantity, format_window
+from timespec.analysis import RssResult, corner_label
+from timespec.fmt import (
+    format_interval,
+    format_part,
+    format_part_value,
+    format_quantity,
+    format_window,
+    ratio_unit,
+)
 from timespec.result import BlockResult, Candidate, OutputResult, Result
 
-__all__ = ["describe_part", "render_block", "render_check", "render_report", "uses_ppm"]
+__all__ = ["ratio_of", "render_block", "render_check", "render_report"]
 
 _WIDTH = 92
 _VERDICT = {"meets": "MEETS", "fails": "FAILS", "infeasible": "INFEASIBLE"}
 
 
-def uses_ppm(out: OutputResult) -> bool:
-    """Whether a ratio output reads better in ppm (crystal accuracy, pulling) than in %.
+def ratio_of(out: OutputResult) -> Literal["%", "ppm"]:
+    """How a ratio output is shown: ppm (crystal accuracy, pulling) or percent.
 
     Parameters
     ----------
@@ -33,54 +41,17 @@ def uses_ppm(out: OutputResult) -> bool:
 
     Returns
     -------
-    bool
-        True for small ratios.
+    str
+        ``"ppm"`` or ``"%"``.
     """
-    if out.kind != "ratio":
-        return False
     values = [out.nominal, out.low, out.high]
     if out.required is not None:
         values += [out.required.low, out.required.high]
-    finite = [abs(v) for v in values if math.isfinite(v)]
-    return bool(finite) and max(finite) < 2e-3
-
-
-def describe_part(part: Part) -> str:
-    """One line for a part: value, series, tolerance, tempco or dielectric.
-
-    Parameters
-    ----------
-    part
-        The part.
-
-    Returns
-    -------
-    str
-        e.g. ``"619k  E96 ±1 %, ±50 ppm/K"``.
-    """
-    bits = [format_part_value(part.value, part.kind)]
-    origin = part.series or "off-series"
-    pair = getattr(part, "pair", None)
-    if pair:
-        a, b, how = pair
-        origin = (
-            f"{format_part_value(a, part.kind)} {'+' if how == 'series' else '∥'} "
-            f"{format_part_value(b, part.kind)} ({part.series or 'pair'} pair)"
-        )
-    detail = f"{origin} ±{part.tolerance * 100:g} %"
-    if part.kind == "resistance":
-        detail += f", ±{(part.tempco_ppm or 0):g} ppm/K"
-    elif part.dielectric:
-        detail += f", {part.dielectric}"
-    if part.ageing:
-        detail += f", ±{part.ageing * 100:g} %/year"
-    if part.pinned:
-        detail += "  (pinned)"
-    return f"{bits[0]:<7} {detail}"
+    return ratio_unit(out.name, values)
 
 
 def _q(value: float, out: OutputResult) -> str:
-    return format_quantity(value, out.kind, ppm=uses_ppm(out))
+    return format_quantity(value, out.kind, ratio=ratio_of(out))
 
 
 def _wrap(label: str, text: str, indent: int = 13) -> list[str]:
@@ -95,48 +66,50 @@ def _output_lines(out: OutputResult, result: BlockResult) -> list[str]:
     lines: list[str] = []
     label = out.name
     pad = " " * 13
-    ppm = uses_ppm(out)
+    ratio = ratio_of(out)
     if out.required is not None:
-        req = format_window(out.required.low, out.required.high, out.kind, ppm=ppm)
+        req = format_window(out.required, ratio=ratio)
+        span = format_interval(out.required.low, out.required.high, out.kind, ratio=ratio)
+        if span.replace(" … ", " to ") != req and not span.startswith(("≤", "≥")):
+            req += f"  ({span})"
         lines.append(f"  {label:<11}required   {req}")
         lines.append(f"{pad}nominal    {_q(out.nominal, out)}")
     else:
         lines.append(f"  {label:<11}nominal    {_q(out.nominal, out)}")
-    wc = format_window(out.low, out.high, out.kind, ppm=ppm)
+    wc = format_interval(out.low, out.high, out.kind, ratio=ratio)
     status = ""
     if out.required is not None:
         lo_m, hi_m = out.margin
-        if out.meets:
-            status = "   inside"
-        else:
-            status = "   OUTSIDE"
+        status = "   inside" if out.meets else "   OUTSIDE"
         if math.isfinite(lo_m) and math.isfinite(hi_m):
             status += (
-                f" (margin {format_quantity(lo_m, out.kind, ppm=ppm)} low, "
-                f"{format_quantity(hi_m, out.kind, ppm=ppm)} high)"
+                f" (margin {format_quantity(lo_m, out.kind, ratio=ratio)} low, "
+                f"{format_quantity(hi_m, out.kind, ratio=ratio)} high)"
             )
     lines.append(f"{pad}worst case {wc}{status}")
-    if out.required is not None and out.low_corner and out.high_corner:
-        lines += textwrap.wrap(
-            f"lowest at: {out.low_corner}", width=_WIDTH, initial_indent=pad + "  ",
-            subsequent_indent=pad + "    ",
-        )
-        lines += textwrap.wrap(
-            f"highest at: {out.high_corner}", width=_WIDTH, initial_indent=pad + "  ",
-            subsequent_indent=pad + "    ",
-        )
     rss = result.rss.get(out.name)
+    if out.required is not None and out.low_corner and out.high_corner:
+        for word, corner, at in (
+            ("lowest", out.low_corner, out.low_at),
+            ("highest", out.high_corner, out.high_at),
+        ):
+            lines += textwrap.wrap(
+                f"{word} at: {_corner_text(corner, at, result, rss)}",
+                width=_WIDTH,
+                initial_indent=pad + "  ",
+                subsequent_indent=pad + "    ",
+            )
     mc = result.monte_carlo.outputs.get(out.name) if result.monte_carlo else None
     if rss is not None or mc is not None:
         parts = []
         if rss is not None:
-            parts.append(f"RSS σ {format_quantity(rss.sigma, out.kind, ppm=ppm)}")
+            parts.append(f"RSS σ {format_quantity(rss.sigma, out.kind, ratio=ratio)}")
         if mc is not None:
             p_lo = mc.percentiles.get(0.135, math.nan)
             p_hi = mc.percentiles.get(99.865, math.nan)
             text = (
                 f"Monte Carlo mean {_q(mc.mean, out)}, σ "
-                f"{format_quantity(mc.std, out.kind, ppm=ppm)}, 99.73 % within "
+                f"{format_quantity(mc.std, out.kind, ratio=ratio)}, 99.73 % within "
                 f"{_q(p_lo, out)} … {_q(p_hi, out)}"
             )
             if mc.cpk is not None and out.required is not None:
@@ -148,6 +121,21 @@ def _output_lines(out: OutputResult, result: BlockResult) -> list[str]:
     return lines
 
 
+def _corner_text(
+    label: str, at: Mapping[str, float], result: BlockResult, rss: RssResult | None
+) -> str:
+    """The corner, keeping only inputs that carry at least 1 % of the variance."""
+    if rss is None or not at or not result.factors:
+        return label
+    keep = {c.name for c in rss.contributions if c.share >= 0.01}
+    shown = {k: v for k, v in at.items() if k in keep}
+    if not shown:
+        return label
+    rest = len([k for k in at if k not in keep])
+    text = corner_label(shown, result.factors)
+    return text + (f" (and {rest} minor inputs)" if rest else "")
+
+
 def _contributors(result: BlockResult) -> list[str]:
     lines: list[str] = []
     for req in result.block.requirements:
@@ -157,8 +145,8 @@ def _contributors(result: BlockResult) -> list[str]:
         top = [c for c in rss.contributions if c.share >= 0.005][:6]
         if not top:
             continue
-        text = " · ".join(f"{c.label} {c.share * 100:.0f} %" for c in top)
-        lines += _wrap(f"drivers ({req.quantity})", text, indent=13)
+        text = f"{req.quantity}: " + " · ".join(f"{c.label} {c.share * 100:.0f} %" for c in top)
+        lines += _wrap("drivers" if not lines else "", text, indent=13)
     return lines
 
 
@@ -168,7 +156,7 @@ def _candidate_line(c: Candidate) -> str:
         parts = f"[{c.design.variant}] " + parts
     req = [o for o in c.outputs if o.required is not None]
     wc = "; ".join(
-        f"{o.name} {format_window(o.low, o.high, o.kind, ppm=uses_ppm(o))}" for o in req
+        f"{o.name} {format_interval(o.low, o.high, o.kind, ratio=ratio_of(o))}" for o in req
     )
     return f"{parts}: {wc} — {c.rank_reason}"
 
@@ -200,7 +188,7 @@ def render_block(result: BlockResult) -> str:
         lines.append(f"  {'circuit':<11}{best.design.variant}")
     for i, part in enumerate(best.design.parts):
         label = "parts" if i == 0 else ""
-        lines.append(f"  {label:<11}{part.ref:<4}{describe_part(part)}")
+        lines.append(f"  {label:<11}{format_part(part)}")
     for out in best.outputs:
         lines += _output_lines(out, result)
     if result.monte_carlo is not None and any(o.required for o in best.outputs):
@@ -212,10 +200,12 @@ def render_block(result: BlockResult) -> str:
         )
     lines += _contributors(result)
     for f in best.findings:
-        lines += _wrap("findings" if f is best.findings[0] else "", f"{f.severity}: {f.message} [{f.code}]")
+        lines += _wrap(
+            "findings" if f is best.findings[0] else "", f"{f.severity}: {f.message} [{f.code}]"
+        )
     for note in result.notes:
         lines += _wrap("note", note)
-    fixes: Sequence[object] = result.extra.get("fixes", ())  # type: ignore[assignment]
+    fixes: Sequence[object] = result.extra.get("fixes", ())
     for i, fix in enumerate(fixes):
         what = getattr(fix, "what", str(fix))
         lines += _wrap("to fix" if i == 0 else "", f"{i + 1}. {what}")
@@ -270,11 +260,11 @@ def render_check(result: Result) -> str:
             for o in b.best.outputs:
                 if o.required is None:
                     continue
-                ppm = uses_ppm(o)
+                ratio = ratio_of(o)
                 where = "within" if o.meets else "OUTSIDE"
                 bits.append(
-                    f"{o.name} {format_window(o.low, o.high, o.kind, ppm=ppm)} {where} "
-                    f"{format_window(o.required.low, o.required.high, o.kind, ppm=ppm)}"
+                    f"{o.name} {format_interval(o.low, o.high, o.kind, ratio=ratio)} {where} "
+                    f"{format_interval(o.required.low, o.required.high, o.kind, ratio=ratio)}"
                 )
             errors = [f.code for f in b.best.findings if f.severity == "error"]
             if errors:
@@ -283,5 +273,7 @@ def render_check(result: Result) -> str:
             bits.extend(b.notes)
         lines.append(f"{status:<11} {b.block.name:<{width}}  {'; '.join(bits)}")
     bad = sum(1 for b in result.blocks if b.verdict != "meets")
-    lines.append(f"{len(result.blocks) - bad} of {len(result.blocks)} blocks meet their requirements")
+    lines.append(
+        f"{len(result.blocks) - bad} of {len(result.blocks)} blocks meet their requirements"
+    )
     return "\n".join(lines) + "\n"

@@ -44,6 +44,8 @@ class OutputResult:
         Worst-case extremes.
     low_corner, high_corner
         Which inputs, at which ends, give the extremes.
+    low_at, high_at
+        The factor values at the extremes (factor name → value).
     """
 
     name: str
@@ -55,6 +57,8 @@ class OutputResult:
     high: float
     low_corner: str = ""
     high_corner: str = ""
+    low_at: Mapping[str, float] = field(default_factory=dict, compare=False, repr=False)
+    high_at: Mapping[str, float] = field(default_factory=dict, compare=False, repr=False)
 
     @property
     def meets(self) -> bool:
@@ -80,11 +84,15 @@ class OutputResult:
         if not (math.isfinite(self.low) and math.isfinite(self.high)):
             return math.inf
         w = self.required
-        span = (w.high - w.low) if math.isfinite(w.high - w.low) and w.high > w.low else abs(w.centre) or 1.0
+        span = (
+            (w.high - w.low)
+            if math.isfinite(w.high - w.low) and w.high > w.low
+            else abs(w.centre) or 1.0
+        )
         out = max(0.0, w.low - self.low) + max(0.0, self.high - w.high)
         return out / span
 
-    def quantities(self) -> dict[str, pint.Quantity]:
+    def quantities(self) -> dict[str, pint.Quantity[Any]]:
         """Nominal and worst-case values as pint quantities.
 
         Returns
@@ -206,7 +214,7 @@ class BlockResult:
         """The parts of the best design (empty when there is none)."""
         return self.best.design.parts if self.best is not None else ()
 
-    def part_values(self) -> dict[str, pint.Quantity]:
+    def part_values(self) -> dict[str, pint.Quantity[Any]]:
         """Part values as pint quantities, by reference.
 
         Returns

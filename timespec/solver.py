@@ -96,6 +96,8 @@ def _candidate(
                 high=ex.high,
                 low_corner=corner_label(ex.low_at, factors) if rules else "",
                 high_corner=corner_label(ex.high_at, factors) if rules else "",
+                low_at=ex.low_at,
+                high_at=ex.high_at,
             )
         )
     if not rules:
@@ -126,7 +128,11 @@ def _centring(cand: Candidate) -> float:
     return worst
 
 
-def rank_key(cand: Candidate) -> tuple[int, float, int, float, int, int, float]:
+#: The solver's sort key (smaller is better).
+RankKey = tuple[int, float, int, float, int, int, float]
+
+
+def rank_key(cand: Candidate) -> RankKey:
     """Sort key: meets first, then least excursion, fewest pairs, centring, simplicity.
 
     Parameters
@@ -222,12 +228,12 @@ def _preselect(block: Block, fam: Family, designs: list[Design], keep: int) -> l
     facs = fam.factors(block, first)
     extremes = worst_case(facs, fam.evaluate(block, first.variant))
     corners = [e.low_at for e in extremes.values()] + [e.high_at for e in extremes.values()]
-    quick: list[tuple[tuple[int, float, float, int, int, float], int]] = []
+    quick: list[tuple[RankKey, int]] = []
     sig = _signature(facs)
     for i, d in enumerate(designs):
         dfacs = fam.factors(block, d)
         if d.variant != first.variant or _signature(dfacs) != sig:
-            quick.append(((0, 0.0, 0.0, 0, 0, 0.0), i))  # different layout: keep it
+            quick.append(((0, 0.0, 0, 0.0, 0, 0, 0.0), i))  # different layout: keep it
             continue
         x = nominal_inputs(dfacs)
         n = len(corners) + 1

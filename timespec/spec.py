@@ -93,7 +93,9 @@ def _walk(
     return out
 
 
-def _include(target: Text, path: Path | None, root: Path | None, seen: tuple[Path, ...]) -> list[Entry]:
+def _include(
+    target: Text, path: Path | None, root: Path | None, seen: tuple[Path, ...]
+) -> list[Entry]:
     if path is None or root is None:
         raise error_at(
             SpecIncludeError,
@@ -111,7 +113,8 @@ def _include(target: Text, path: Path | None, root: Path | None, seen: tuple[Pat
         )
     if wanted in seen:
         raise error_at(
-            SpecIncludeError, f"{target.text!r} includes itself (through {len(seen)} files)",
+            SpecIncludeError,
+            f"{target.text!r} includes itself (through {len(seen)} files)",
             target.pos,
         )
     try:
@@ -156,7 +159,10 @@ def _assemble(entries: list[Entry], path: str | None) -> Spec:
         _add(current, entry)
     if not sections:
         raise SpecValueError(
-            "the spec has no blocks", path=path, line=1, column=1,
+            "the spec has no blocks",
+            path=path,
+            line=1,
+            column=1,
             hint="add a block, e.g. 'oneshot relay_hold: width 150 ms ±8% at supply 12 V ±5%'",
         )
     blocks = tuple(_finish(sec, defaults) for sec in sections)
@@ -168,7 +174,9 @@ def _open(entry: Header, defaults: _Section, names: dict[str, Pos]) -> _Section:
     if kind == "defaults":
         if entry.name is not None:
             raise error_at(
-                SpecValueError, "'defaults' takes no name", entry.name_pos,
+                SpecValueError,
+                "'defaults' takes no name",
+                entry.name_pos,
                 "write 'defaults:' on its own",
             )
         return defaults
@@ -228,10 +236,7 @@ def _add(section: _Section, stmt: Statement) -> None:
             f"it is used in {', '.join(homes)} blocks" if homes else None,
         )
     reading = read_statement(stmt, section.kind)
-    if reading.target == "requirement":
-        key = f"req:{reading.value.quantity}"
-    else:
-        key = stmt.keyword
+    key = f"req:{reading.value.quantity}" if reading.target == "requirement" else stmt.keyword
     if key in section.readings:
         first = section.readings[key][1]
         raise error_at(
@@ -274,8 +279,7 @@ def _finish(sec: _Section, defaults: _Section) -> Block:
     # requirements
     for group in REQUIRED[sec.kind]:
         if not any(
-            f"req:{w}" in sec.readings or w in sec.readings or w in defaults.readings
-            for w in group
+            f"req:{w}" in sec.readings or w in sec.readings or w in defaults.readings for w in group
         ):
             need = " or ".join(f"'{w}'" for w in group)
             example = KEYWORDS[group[0]].example
@@ -454,4 +458,3 @@ def load(path: str | Path) -> Spec:
     resolved = p.resolve()
     entries = _walk(text, p, resolved.parent, (resolved,))
     return _assemble(entries, str(p))
-

@@ -300,17 +300,18 @@ def _requirement(quantity: str, kinds: Sequence[str]) -> Reader:
     def read(stmt: Statement) -> Reading:
         term = _single(stmt, "a window, e.g. " + KEYWORDS[stmt.keyword].example)
         win = _window(term, kinds, stmt.keyword, exact_ok=False)
-        if quantity == "duty" and not (0.0 <= win.low and win.high <= 1.0):
-            if not (math.isinf(win.low) or math.isinf(win.high)):
-                raise error_at(
-                    SpecValueError,
-                    "a duty cycle lies between 0 % and 100 %",
-                    _pos_of(term),
-                )
-        if win.kind != "ratio" and win.low <= 0 and not math.isinf(win.low):
+        if (
+            quantity == "duty"
+            and not (win.low >= 0.0 and win.high <= 1.0)
+            and not (math.isinf(win.low) or math.isinf(win.high))
+        ):
             raise error_at(
-                SpecValueError, f"'{stmt.keyword}' must stay above zero", _pos_of(term)
+                SpecValueError,
+                "a duty cycle lies between 0 % and 100 %",
+                _pos_of(term),
             )
+        if win.kind != "ratio" and win.low <= 0 and not math.isinf(win.low):
+            raise error_at(SpecValueError, f"'{stmt.keyword}' must stay above zero", _pos_of(term))
         if win.kind != "ratio" and math.isinf(win.low):
             win = Window(0.0, win.high, win.kind, win.nominal)
         return Reading("requirement", Requirement(quantity, win, stmt.pos))
@@ -412,7 +413,10 @@ def _policy_items(stmt: Statement, part: str, terms: Sequence[Term]) -> dict[str
             elif q.kind == "rate":
                 put("ageing", abs(q.value), q.pos)
             else:
-                hint = "expected a tolerance (1%), a tempco (100 ppm/K), a range or ageing (0.1 %/year)"
+                hint = (
+                    "expected a tolerance (1%), a tempco (100 ppm/K), a range "
+                    "or ageing (0.1 %/year)"
+                )
                 if q.kind == "tempco":
                     hint = "a capacitor's temperature behaviour comes from its dielectric, e.g. C0G"
                 raise error_at(
@@ -443,7 +447,9 @@ def _read_policy(part: str) -> Reader:
     def read(stmt: Statement) -> Reading:
         if not stmt.args:
             raise error_at(
-                SpecValueError, f"'{stmt.keyword}' needs at least one item", stmt.pos,
+                SpecValueError,
+                f"'{stmt.keyword}' needs at least one item",
+                stmt.pos,
                 _example_hint(stmt.keyword),
             )
         terms = [t for arg in stmt.args for t in arg]
@@ -454,7 +460,9 @@ def _read_policy(part: str) -> Reader:
 
 def _read_use(stmt: Statement) -> Reading:
     if not stmt.args:
-        raise error_at(SpecValueError, "'use' needs at least one part", stmt.pos, _example_hint("use"))
+        raise error_at(
+            SpecValueError, "'use' needs at least one part", stmt.pos, _example_hint("use")
+        )
     parts: list[PinnedPart] = []
     for arg in stmt.args:
         ref = arg[0]
@@ -495,7 +503,8 @@ def _read_use(stmt: Statement) -> Reading:
             if bad in fields:
                 raise error_at(
                     SpecValueError,
-                    f"a pinned part takes a tolerance, series and tempco or dielectric, not a {bad}",
+                    "a pinned part takes a tolerance, series and tempco or dielectric, "
+                    f"not a {bad}",
                     ref.pos,
                 )
         try:
@@ -523,7 +532,10 @@ def _read_use(stmt: Statement) -> Reading:
 def _read_timer(stmt: Statement) -> Reading:
     if not stmt.args or not isinstance(stmt.args[0][0], Word):
         raise error_at(
-            SpecValueError, "'timer' needs a class: bipolar or cmos", stmt.pos, _example_hint("timer")
+            SpecValueError,
+            "'timer' needs a class: bipolar or cmos",
+            stmt.pos,
+            _example_hint("timer"),
         )
     word = stmt.args[0][0]
     name = word.text.lower()
@@ -607,7 +619,7 @@ def _read_span(kinds: Sequence[str], *, fraction_of: str | None = None) -> Reade
             inner = term.inner
             win = _window(inner, ["ratio", None], stmt.keyword, exact_ok=True)
             win = Window(win.low, win.high, "ratio", win.nominal)
-            if not (0 < win.low and win.high < 1):
+            if not (win.low > 0 and win.high < 1):
                 raise error_at(
                     SpecValueError, f"a share of the {fraction_of} lies between 0 and 1", term.pos
                 )
@@ -664,7 +676,8 @@ def _read_ppm(*, rate: bool = False, requirement: str | None = None) -> Reader:
         else:
             raise error_at(
                 SpecValueError,
-                f"'{stmt.keyword}' needs a band such as {KEYWORDS[stmt.keyword].example.split(' ', 1)[1]}",
+                f"'{stmt.keyword}' needs a band such as "
+                f"{KEYWORDS[stmt.keyword].example.split(' ', 1)[1]}",
                 _pos_of(term),
             )
         if requirement is not None:
@@ -676,12 +689,20 @@ def _read_ppm(*, rate: bool = False, requirement: str | None = None) -> Reader:
 
 def _read_trigger(stmt: Statement) -> Reading:
     if not stmt.args:
-        raise error_at(SpecValueError, "'trigger' needs the trigger pulse length", stmt.pos,
-                       _example_hint("trigger"))
+        raise error_at(
+            SpecValueError,
+            "'trigger' needs the trigger pulse length",
+            stmt.pos,
+            _example_hint("trigger"),
+        )
     first = stmt.args[0]
     if len(first) != 1:
-        raise error_at(SpecValueError, "'trigger' starts with one time", _pos_of(first[-1]),
-                       _example_hint("trigger"))
+        raise error_at(
+            SpecValueError,
+            "'trigger' starts with one time",
+            _pos_of(first[-1]),
+            _example_hint("trigger"),
+        )
     q = _quantity(first[0], ["time"], "trigger")
     out: dict[str, float] = {"trigger": _positive(q, "trigger")}
     for arg in stmt.args[1:]:
@@ -702,13 +723,9 @@ def _read_count(minimum: int) -> Reader:
     def read(stmt: Statement) -> Reading:
         term = _single(stmt, "a whole number")
         if not (isinstance(term, Quantity) and term.kind is None and term.value.is_integer()):
-            raise error_at(
-                SpecValueError, f"'{stmt.keyword}' needs a whole number", _pos_of(term)
-            )
+            raise error_at(SpecValueError, f"'{stmt.keyword}' needs a whole number", _pos_of(term))
         if term.value < minimum:
-            raise error_at(
-                SpecValueError, f"'{stmt.keyword}' must be at least {minimum}", term.pos
-            )
+            raise error_at(SpecValueError, f"'{stmt.keyword}' must be at least {minimum}", term.pos)
         return Reading("statistics", {stmt.keyword: int(term.value)})
 
     return read
@@ -716,8 +733,9 @@ def _read_count(minimum: int) -> Reader:
 
 def _read_spread(stmt: Statement) -> Reading:
     if not stmt.args or not isinstance(stmt.args[0][0], Word):
-        raise error_at(SpecValueError, "'spread' needs uniform or normal", stmt.pos,
-                       _example_hint("spread"))
+        raise error_at(
+            SpecValueError, "'spread' needs uniform or normal", stmt.pos, _example_hint("spread")
+        )
     word = stmt.args[0][0]
     name = word.text.lower()
     if name not in ("uniform", "normal"):
@@ -736,8 +754,10 @@ def _read_spread(stmt: Statement) -> Reading:
             and isinstance(first, Quantity)
             and first.kind is None
             and first.value > 0
-            and (len(rest) == 1 or (len(rest) == 2 and isinstance(rest[1], Word)
-                                   and rest[1].text == "sigma"))
+            and (
+                len(rest) == 1
+                or (len(rest) == 2 and isinstance(rest[1], Word) and rest[1].text == "sigma")
+            )
         )
         if not ok:
             raise error_at(
@@ -754,7 +774,9 @@ def _read_include(stmt: Statement) -> Reading:
     term = _single(stmt, 'a quoted file name, e.g. include "common.tspec"')
     if not isinstance(term, Text):
         raise error_at(
-            SpecValueError, "'include' needs a quoted file name", _pos_of(term),
+            SpecValueError,
+            "'include' needs a quoted file name",
+            _pos_of(term),
             'write it like: include "common.tspec"',
         )
     return Reading("include", term)
@@ -780,7 +802,9 @@ _RC = frozenset({"defaults", "oneshot", "astable", "delay", "relaxation"})
 _TIMERS = frozenset({"defaults", "oneshot", "astable"})
 
 
-def _kw(name: str, kinds: frozenset[str] | set[str], example: str, meaning: str, read: Reader) -> Keyword:
+def _kw(
+    name: str, kinds: frozenset[str] | set[str], example: str, meaning: str, read: Reader
+) -> Keyword:
     return Keyword(name, frozenset(kinds), example, meaning, read)
 
 
@@ -788,91 +812,239 @@ _TABLE: list[Keyword] = [
     _kw("supply", _ALL, "supply 12 V ±5%", "supply voltage and its tolerance", _read_supply),
     _kw("ambient", _ALL, "ambient -10 degC to 60 degC", "ambient temperature range", _read_ambient),
     _kw("life", _ALL, "life 5 years", "service life, for ageing", _read_life),
-    _kw("resistors", _RC, "resistors E96 1% 100 ppm/K, 1k to 1M",
+    _kw(
+        "resistors",
+        _RC,
+        "resistors E96 1% 100 ppm/K, 1k to 1M",
         "resistor policy: series, tolerance, tempco, value range, pairs, ageing",
-        _read_policy("resistors")),
-    _kw("capacitors", _ALL, "capacitors E12 5% C0G, 1n to 100n",
+        _read_policy("resistors"),
+    ),
+    _kw(
+        "capacitors",
+        _ALL,
+        "capacitors E12 5% C0G, 1n to 100n",
         "capacitor policy: series, tolerance, dielectric, value range, pairs, ageing",
-        _read_policy("capacitors")),
-    _kw("leakage", _RC, "leakage 5 nA max",
-        "capacitor and board leakage at the timing node (a bound)", _read_limit(["current"])),
+        _read_policy("capacitors"),
+    ),
+    _kw(
+        "leakage",
+        _RC,
+        "leakage 5 nA max",
+        "capacitor and board leakage at the timing node (a bound)",
+        _read_limit(["current"]),
+    ),
     _kw("samples", _ALL, "samples 50000", "Monte Carlo sample count", _read_count(1)),
     _kw("seed", _ALL, "seed 7", "Monte Carlo seed", _read_count(0)),
-    _kw("spread", _ALL, "spread normal 3 sigma",
+    _kw(
+        "spread",
+        _ALL,
+        "spread normal 3 sigma",
         "how part values spread inside their tolerance: uniform, or normal N sigma",
-        _read_spread),
-    _kw("timer", _TIMERS, "timer cmos, initial ±2%, drift ±100 ppm/K",
-        "555-type timer class and optional accuracy overrides", _read_timer),
-    _kw("use", {"oneshot", "astable", "delay", "relaxation", "crystal"},
-        "use R 150k 1%, C 1u X7R 10%", "pin parts: check them instead of choosing", _read_use),
+        _read_spread,
+    ),
+    _kw(
+        "timer",
+        _TIMERS,
+        "timer cmos, initial ±2%, drift ±100 ppm/K",
+        "555-type timer class and optional accuracy overrides",
+        _read_timer,
+    ),
+    _kw(
+        "use",
+        {"oneshot", "astable", "delay", "relaxation", "crystal"},
+        "use R 150k 1%, C 1u X7R 10%",
+        "pin parts: check them instead of choosing",
+        _read_use,
+    ),
     # one-shot
-    _kw("width", {"oneshot"}, "width 150 ms ±8%", "required output pulse width",
-        _requirement("width", ["time"])),
-    _kw("trigger", {"oneshot"}, "trigger 2 ms, spacing 1 s",
-        "trigger pulse length, and the shortest time between triggers", _read_trigger),
-    _kw("control", {"oneshot"}, "control 8 V ±2%",
+    _kw(
+        "width",
+        {"oneshot"},
+        "width 150 ms ±8%",
+        "required output pulse width",
+        _requirement("width", ["time"]),
+    ),
+    _kw(
+        "trigger",
+        {"oneshot"},
+        "trigger 2 ms, spacing 1 s",
+        "trigger pulse length, and the shortest time between triggers",
+        _read_trigger,
+    ),
+    _kw(
+        "control",
+        {"oneshot"},
+        "control 8 V ±2%",
         "control-pin voltage forced from outside (sets the threshold)",
-        _read_span(["voltage"])),
+        _read_span(["voltage"]),
+    ),
     # astable and relaxation
-    _kw("frequency", {"astable", "relaxation", "crystal"}, "frequency 4 Hz ±10%",
+    _kw(
+        "frequency",
+        {"astable", "relaxation", "crystal"},
+        "frequency 4 Hz ±10%",
         "required frequency (for a crystal: its nominal frequency, e.g. frequency 12 MHz)",
-        _requirement("frequency", ["frequency"])),
-    _kw("period", {"astable", "relaxation"}, "period 250 ms ±10%", "required period",
-        _requirement("period", ["time"])),
-    _kw("duty", {"astable"}, "duty 30% ±5%",
+        _requirement("frequency", ["frequency"]),
+    ),
+    _kw(
+        "period",
+        {"astable", "relaxation"},
+        "period 250 ms ±10%",
+        "required period",
+        _requirement("period", ["time"]),
+    ),
+    _kw(
+        "duty",
+        {"astable"},
+        "duty 30% ±5%",
         "required duty cycle (share of the period the output is high; ± in percentage points)",
-        _requirement("duty", ["ratio"])),
-    _kw("high", {"astable"}, "high 100 ms ±10%", "required high time",
-        _requirement("high", ["time"])),
-    _kw("low", {"astable"}, "low 150 ms ±10%", "required low time",
-        _requirement("low", ["time"])),
-    _kw("circuit", {"astable"}, "circuit diode",
+        _requirement("duty", ["ratio"]),
+    ),
+    _kw(
+        "high",
+        {"astable"},
+        "high 100 ms ±10%",
+        "required high time",
+        _requirement("high", ["time"]),
+    ),
+    _kw("low", {"astable"}, "low 150 ms ±10%", "required low time", _requirement("low", ["time"])),
+    _kw(
+        "circuit",
+        {"astable"},
+        "circuit diode",
         "astable circuit: classic (two resistors), diode (steering diode), feedback (CMOS output)",
-        _read_choice(["classic", "diode", "feedback"])),
-    _kw("diode", {"astable"}, "diode 0.55 V to 0.75 V",
-        "steering-diode forward drop at 25 °C", _read_span(["voltage"])),
+        _read_choice(["classic", "diode", "feedback"]),
+    ),
+    _kw(
+        "diode",
+        {"astable"},
+        "diode 0.55 V to 0.75 V",
+        "steering-diode forward drop at 25 °C",
+        _read_span(["voltage"]),
+    ),
     # delay
-    _kw("delay", {"delay"}, "delay 20 ms to 40 ms", "required delay",
-        _requirement("delay", ["time"])),
-    _kw("threshold", {"delay"}, "threshold 0.55 to 0.75 of supply",
+    _kw(
+        "delay",
+        {"delay"},
+        "delay 20 ms to 40 ms",
+        "required delay",
+        _requirement("delay", ["time"]),
+    ),
+    _kw(
+        "threshold",
+        {"delay"},
+        "threshold 0.55 to 0.75 of supply",
         "input threshold, in volts or as a share of the supply",
-        _read_span(["voltage"], fraction_of="supply")),
-    _kw("start", {"delay"}, "start 0.2 V", "capacitor voltage when the delay starts",
-        _read_level(["voltage"], positive=False)),
+        _read_span(["voltage"], fraction_of="supply"),
+    ),
+    _kw(
+        "start",
+        {"delay"},
+        "start 0.2 V",
+        "capacitor voltage when the delay starts",
+        _read_level(["voltage"], positive=False),
+    ),
     # relaxation
-    _kw("gate", {"defaults", "relaxation"}, "gate highspeed",
-        "Schmitt-inverter class: " + ", ".join(GATE_CLASSES), _read_gate),
-    _kw("rising", {"relaxation"}, "rising 0.4 to 0.7 of supply",
+    _kw(
+        "gate",
+        {"defaults", "relaxation"},
+        "gate highspeed",
+        "Schmitt-inverter class: " + ", ".join(GATE_CLASSES),
+        _read_gate,
+    ),
+    _kw(
+        "rising",
+        {"relaxation"},
+        "rising 0.4 to 0.7 of supply",
         "positive-going threshold band (overrides the gate class)",
-        _read_span(["voltage"], fraction_of="supply")),
-    _kw("falling", {"relaxation"}, "falling 0.2 to 0.45 of supply",
+        _read_span(["voltage"], fraction_of="supply"),
+    ),
+    _kw(
+        "falling",
+        {"relaxation"},
+        "falling 0.2 to 0.45 of supply",
         "negative-going threshold band (overrides the gate class)",
-        _read_span(["voltage"], fraction_of="supply")),
+        _read_span(["voltage"], fraction_of="supply"),
+    ),
     # crystal
-    _kw("load", {"crystal"}, "load 8 pF", "load capacitance the crystal is calibrated at",
-        _read_level(["capacitance"])),
-    _kw("stray", {"crystal"}, "stray 2 pF to 5 pF", "stray capacitance of pins and board",
-        _read_span(["capacitance"])),
-    _kw("shunt", {"crystal"}, "shunt 1.5 pF", "crystal shunt capacitance C0",
-        _read_level(["capacitance"])),
-    _kw("motional", {"crystal"}, "motional 4 fF", "crystal motional capacitance Cm",
-        _read_level(["capacitance"])),
-    _kw("esr", {"crystal"}, "esr 60 ohm max", "crystal series resistance (a bound)",
-        _read_limit(["resistance"])),
-    _kw("drive", {"crystal"}, "drive 100 uW max", "largest drive level the crystal takes",
-        _read_limit(["power"])),
-    _kw("gm", {"crystal"}, "gm 5 mA/V", "oscillator amplifier transconductance",
-        _read_level(["transconductance"])),
-    _kw("swing", {"crystal"}, "swing 3 V", "peak-to-peak voltage across the crystal",
-        _read_level(["voltage"])),
-    _kw("tolerance", {"crystal"}, "tolerance ±10 ppm", "crystal calibration tolerance at 25 °C",
-        _read_ppm()),
-    _kw("stability", {"crystal"}, "stability ±20 ppm",
-        "crystal frequency change over the ambient range", _read_ppm()),
-    _kw("aging", {"crystal"}, "aging ±3 ppm/year", "crystal ageing per year",
-        _read_ppm(rate=True)),
-    _kw("accuracy", {"crystal"}, "accuracy ±50 ppm",
-        "required total frequency error over life", _read_ppm(requirement="accuracy")),
+    _kw(
+        "load",
+        {"crystal"},
+        "load 8 pF",
+        "load capacitance the crystal is calibrated at",
+        _read_level(["capacitance"]),
+    ),
+    _kw(
+        "stray",
+        {"crystal"},
+        "stray 2 pF to 5 pF",
+        "stray capacitance of pins and board",
+        _read_span(["capacitance"]),
+    ),
+    _kw(
+        "shunt",
+        {"crystal"},
+        "shunt 1.5 pF",
+        "crystal shunt capacitance C0",
+        _read_level(["capacitance"]),
+    ),
+    _kw(
+        "motional",
+        {"crystal"},
+        "motional 4 fF",
+        "crystal motional capacitance Cm",
+        _read_level(["capacitance"]),
+    ),
+    _kw(
+        "esr",
+        {"crystal"},
+        "esr 60 ohm max",
+        "crystal series resistance (a bound)",
+        _read_limit(["resistance"]),
+    ),
+    _kw(
+        "drive",
+        {"crystal"},
+        "drive 100 uW max",
+        "largest drive level the crystal takes",
+        _read_limit(["power"]),
+    ),
+    _kw(
+        "gm",
+        {"crystal"},
+        "gm 5 mA/V",
+        "oscillator amplifier transconductance",
+        _read_level(["transconductance"]),
+    ),
+    _kw(
+        "swing",
+        {"crystal"},
+        "swing 3 V",
+        "peak-to-peak voltage across the crystal",
+        _read_level(["voltage"]),
+    ),
+    _kw(
+        "tolerance",
+        {"crystal"},
+        "tolerance ±10 ppm",
+        "crystal calibration tolerance at 25 °C",
+        _read_ppm(),
+    ),
+    _kw(
+        "stability",
+        {"crystal"},
+        "stability ±20 ppm",
+        "crystal frequency change over the ambient range",
+        _read_ppm(),
+    ),
+    _kw("aging", {"crystal"}, "aging ±3 ppm/year", "crystal ageing per year", _read_ppm(rate=True)),
+    _kw(
+        "accuracy",
+        {"crystal"},
+        "accuracy ±50 ppm",
+        "required total frequency error over life",
+        _read_ppm(requirement="accuracy"),
+    ),
     _kw("include", set(), 'include "common.tspec"', "read another spec file here", _read_include),
 ]
 

@@ -80,7 +80,7 @@ def _normalise(text: str) -> str:
 
 
 @functools.cache
-def registry() -> pint.UnitRegistry:
+def registry() -> pint.UnitRegistry[Any]:
     """Return the package's single pint unit registry (built on first call).
 
     Returns
@@ -90,6 +90,7 @@ def registry() -> pint.UnitRegistry:
     """
     import pint
 
+    reg: pint.UnitRegistry[Any]
     try:
         reg = pint.UnitRegistry(cache_folder=":auto:")
     except Exception:  # pragma: no cover - a read-only cache folder
@@ -164,10 +165,10 @@ def unit_info(text: str) -> UnitInfo:
     return UnitInfo(None, float(reg.Quantity(1.0, unit).to_base_units().magnitude), 0.0, str(dim))
 
 
-_COMMON_UNITS = (
+_COMMON_UNITS = tuple(
     "s ms us ns ps min hour year Hz kHz MHz GHz ohm kohm Mohm F mF uF nF pF fF V mV kV "
-    "A mA uA nA pA W mW uW nW degC K ppm % ppm/K %/K ppm/year %/year mA/V S mS uS"
-).split()
+    "A mA uA nA pA W mW uW nW degC K ppm % ppm/K %/K ppm/year %/year mA/V S mS uS".split()
+)
 
 
 def _unknown_unit_message(text: str) -> str:
@@ -194,7 +195,7 @@ def kind_symbol(kind: str) -> str:
     return KINDS[kind][0]
 
 
-def quantity(value: Any, kind: str) -> pint.Quantity:
+def quantity(value: Any, kind: str) -> pint.Quantity[Any]:
     """Wrap an SI value (float or array) as a pint quantity of the given kind.
 
     Parameters

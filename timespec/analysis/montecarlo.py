@@ -248,7 +248,7 @@ class _Accumulator:
         nb = xf.size
         mb = float(xf.mean())
         dev = xf - mb
-        m2b = float(np.dot(dev, dev))
+        m2b = float(np.einsum("i,i->", dev, dev))
         na = self.n
         total = na + nb
         delta = mb - self.mean

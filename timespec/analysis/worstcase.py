@@ -256,7 +256,10 @@ def worst_case_many(
         raise ValueError(f"worst-case grid has {count} points, more than max_points={max_points}")
     strides = [math.prod(len(lv) for lv in levels[j + 1 :]) for j in range(len(levels))]
     index = np.arange(count, dtype=np.int64)
-    grid = {f.name: lv[(index // st) % len(lv)] for f, lv, st in zip(varying, levels, strides, strict=True)}
+    grid = {
+        f.name: lv[(index // st) % len(lv)]
+        for f, lv, st in zip(varying, levels, strides, strict=True)
+    }
     fixed = [f for f in facs if not is_varying(f)]
     ov = {k: np.asarray(np.atleast_1d(v), dtype=np.float64) for k, v in overrides.items()}
 

@@ -7,14 +7,22 @@ what they share.  :func:`family` looks one up by block kind.
 
 from __future__ import annotations
 
+from timespec.families.astable import Astable
 from timespec.families.base import Family
+from timespec.families.crystal import Crystal
+from timespec.families.delay import Delay
 from timespec.families.oneshot import OneShot
+from timespec.families.relaxation import Relaxation
 
 __all__ = ["FAMILIES", "family"]
 
 #: Family objects by block kind.
 FAMILIES: dict[str, Family] = {
     "oneshot": OneShot(),
+    "delay": Delay(),
+    "relaxation": Relaxation(),
+    "astable": Astable(),
+    "crystal": Crystal(),
 }
 
 

@@ -41,6 +41,8 @@ __all__ = [
     "capacitor_part",
     "condition_factors",
     "dielectric_findings",
+    "neighbour_parts",
+    "pair_part",
     "part_factors",
     "resistor_part",
     "scaled_time",
@@ -79,6 +81,10 @@ class Part:
         Whether the spec fixed it.
     ageing
         Relative drift per year bound.
+    pair
+        ``(a, b, how)`` when the part is two standard values ``a <= b`` joined in
+        ``"series"`` or ``"parallel"`` (``value`` is then the combined value and
+        ``tolerance`` the pair's worst-case tolerance); ``None`` for a single part.
     """
 
     ref: str
@@ -90,6 +96,12 @@ class Part:
     dielectric: str | None = None
     pinned: bool = False
     ageing: float = 0.0
+    pair: tuple[float, float, str] | None = None
+
+    @property
+    def count(self) -> int:
+        """How many physical parts this stands for (2 for a pair)."""
+        return 1 if self.pair is None else 2
 
 
 @dataclass(frozen=True)
@@ -197,7 +209,9 @@ class Family(Protocol):
 # parts
 
 
-def resistor_part(ref: str, value: float, policy: ResistorPolicy, pinned: PinnedPart | None = None) -> Part:
+def resistor_part(
+    ref: str, value: float, policy: ResistorPolicy, pinned: PinnedPart | None = None
+) -> Part:
     """Make a resistor from a policy (or a pinned part, whose own figures win).
 
     Parameters
@@ -338,6 +352,146 @@ def snap(series_name: str, x: FloatArray, low: float, high: float) -> tuple[Floa
     return below, above
 
 
+def pair_part(
+    ref: str, a: float, b: float, how: str, policy: ResistorPolicy | CapacitorPolicy
+) -> Part:
+    """Make one part out of two standard values in series or in parallel.
+
+    Parameters
+    ----------
+    ref
+        Reference.
+    a, b
+        The two standard values, Ω or F.
+    how
+        ``"series"`` or ``"parallel"``.
+    policy
+        The block's resistor or capacitor policy (series, tolerance, tempco or
+        dielectric and ageing of both parts).
+
+    Returns
+    -------
+    Part
+        A part whose ``value`` is the combination, ``tolerance`` the pair's
+        worst-case tolerance and ``pair`` the constituents.
+
+    Notes
+    -----
+    Series ``a + b``, parallel ``a·b/(a + b)``; the worst-case tolerance comes from
+    :func:`timespec.series.pair_tolerance` (equal to the parts' tolerance when both
+    share it).  Both combinations are weighted means of the parts' relative changes
+    (by value in series, by conductance in parallel for resistors; the reverse for
+    capacitors), so a common tempco band, dielectric drift or ageing bound applies
+    to the pair unchanged.  Monte Carlo treats the pair as one part spread over its
+    tolerance, which is conservative (two independent parts partly average out).
+
+    References
+    ----------
+    Series and parallel combination (Ohm's and Kirchhoff's laws); extreme-value
+    analysis of a monotone function, common practice.
+    """
+    lo, hi = sorted((float(a), float(b)))
+    value = lo + hi if how == "series" else lo * hi / (lo + hi)
+    tol = series.pair_tolerance(lo, hi, how, policy.tolerance, policy.tolerance)
+    if isinstance(policy, ResistorPolicy):
+        return Part(
+            ref=ref,
+            kind="resistance",
+            value=value,
+            tolerance=tol,
+            series=policy.series,
+            tempco_ppm=policy.tempco_ppm,
+            ageing=policy.ageing,
+            pair=(lo, hi, how),
+        )
+    return Part(
+        ref=ref,
+        kind="capacitance",
+        value=value,
+        tolerance=tol,
+        series=policy.series,
+        dielectric=policy.dielectric,
+        ageing=policy.ageing,
+        pair=(lo, hi, how),
+    )
+
+
+def _nearest_pairs(
+    series_name: str, x: float, low: float, high: float
+) -> list[tuple[float, float, str]]:
+    """The pairs nearest below and above ``x`` that fall between its single neighbours."""
+    below, above = series.neighbours(series_name, x)
+    lo, hi = max(below, low), min(above, high)
+    if not lo < hi:
+        return []
+    table = series.pair_table(series_name, lo, hi)
+    slack = 1e-9
+    keep = (table["a"] >= low * (1 - slack)) & (table["b"] <= high * (1 + slack))
+    # a pair equal to a single standard value adds a part for nothing
+    keep &= ~np.isclose(table["value"], below, rtol=1e-6, atol=0.0)
+    keep &= ~np.isclose(table["value"], above, rtol=1e-6, atol=0.0)
+    table = table[keep]
+    out: list[tuple[float, float, str]] = []
+    for side in (table[table["value"] <= x], table[table["value"] > x]):
+        if not side.size:
+            continue
+        # nearest value; among equal values the most even pair (smallest b/a)
+        gap = np.abs(side["value"] - x)
+        tied = side[gap == gap.min()]
+        rec = tied[int(np.argmin(tied["b"] / tied["a"]))]
+        out.append((float(rec["a"]), float(rec["b"]), str(rec["how"])))
+    return out
+
+
+def neighbour_parts(ref: str, x: float, policy: ResistorPolicy | CapacitorPolicy) -> list[Part]:
+    """Standard parts just below and above a continuous value, pairs included when allowed.
+
+    Parameters
+    ----------
+    ref
+        Reference for the parts.
+    x
+        The continuous value a family solved for, Ω or F (nan or non-positive: none).
+    policy
+        The resistor or capacitor policy: series, range and whether ``pairs`` are allowed.
+
+    Returns
+    -------
+    list of Part
+        The single standard values below and above ``x`` inside the policy range
+        (one when ``x`` is itself standard) and, when ``policy.pairs`` is set, the
+        series or parallel pair of standard values nearest below and nearest above
+        ``x`` among those strictly between the two single neighbours, both parts
+        inside the policy range.  Families use this instead of :func:`snap` to
+        offer in-between values.
+
+    Notes
+    -----
+    Pairs come from :func:`timespec.series.pair_table` (larger/smaller part ratio at
+    most 10) restricted to the gap between the single neighbours, so the table stays
+    small; a pair that equals a single standard value is dropped.
+
+    References
+    ----------
+    IEC 60063 for the values; series and parallel combination, textbook circuit theory.
+    """
+    if not (math.isfinite(x) and x > 0):
+        return []
+    lo, hi = policy.low, policy.high
+    below, above = snap(policy.series, np.array([x]), lo, hi)
+    values = sorted({float(v) for v in (below[0], above[0]) if np.isfinite(v)})
+    out: list[Part] = []
+    for v in values:
+        if isinstance(policy, ResistorPolicy):
+            out.append(resistor_part(ref, v, policy))
+        else:
+            out.append(capacitor_part(ref, v, policy))
+    if policy.pairs:
+        for a, b, how in _nearest_pairs(policy.series, x, lo, hi):
+            out.append(pair_part(ref, a, b, how, policy))
+    return out
+
+
 # --------------------------------------------------------------------------
 # factors
 
@@ -373,7 +527,9 @@ def part_factors(block: Block, part: Part) -> list[Factor]:
     dist, sigmas = _tol_distribution(block)
     ref = part.ref
     out = [
-        Factor(f"{ref}.value", f"{ref} value", part.value, part.value, part.value, "fixed", group=ref),
+        Factor(
+            f"{ref}.value", f"{ref} value", part.value, part.value, part.value, "fixed", group=ref
+        ),
         Factor(
             f"{ref}.tol",
             f"{ref} tolerance (±{part.tolerance * 100:g} %)",
@@ -397,7 +553,14 @@ def part_factors(block: Block, part: Part) -> list[Factor]:
             lo, hi = d.tc_ppm_low, d.tc_ppm_high
             mid = min(max(0.0, lo), hi)
             out.append(
-                Factor(f"{ref}.tc", f"{ref} {d.name} tempco ({lo:g}…{hi:g} ppm/K)", mid, lo, hi, group=ref)
+                Factor(
+                    f"{ref}.tc",
+                    f"{ref} {d.name} tempco ({lo:g}…{hi:g} ppm/K)",
+                    mid,
+                    lo,
+                    hi,
+                    group=ref,
+                )
             )
         elif span:
             lo, hi = d.drift_low, d.drift_high
@@ -414,8 +577,14 @@ def part_factors(block: Block, part: Part) -> list[Factor]:
     age = part.ageing * cond.life_years
     if age > 0:
         out.append(
-            Factor(f"{ref}.age", f"{ref} ageing over {cond.life_years:g} years (±{age * 100:.3g} %)",
-                   0.0, -age, age, group=ref)
+            Factor(
+                f"{ref}.age",
+                f"{ref} ageing over {cond.life_years:g} years (±{age * 100:.3g} %)",
+                0.0,
+                -age,
+                age,
+                group=ref,
+            )
         )
     return out
 
@@ -472,10 +641,17 @@ def condition_factors(block: Block) -> list[Factor]:
     t_nom = min(max(REFERENCE_C, c.ambient_low), c.ambient_high)
     s = c.supply
     return [
-        Factor("temp", f"ambient ({c.ambient_low:g}…{c.ambient_high:g} °C)", t_nom,
-               c.ambient_low, c.ambient_high, group="operating"),
-        Factor("supply", f"supply ({s.low:g}…{s.high:g} V)", s.centre, s.low, s.high,
-               group="operating"),
+        Factor(
+            "temp",
+            f"ambient ({c.ambient_low:g}…{c.ambient_high:g} °C)",
+            t_nom,
+            c.ambient_low,
+            c.ambient_high,
+            group="operating",
+        ),
+        Factor(
+            "supply", f"supply ({s.low:g}…{s.high:g} V)", s.centre, s.low, s.high, group="operating"
+        ),
     ]
 
 
@@ -502,20 +678,51 @@ def timer_factors(block: Block, *, leakage: float = 0.0) -> list[Factor]:
     k_lo, k_hi = t.ratio_band
     k_nom = min(max(2.0 / 3.0, k_lo), k_hi)
     out = [
-        Factor("timer.ratio", f"{t.name} timer threshold ratio (±{t.initial * 100:g} % timing)",
-               k_nom, k_lo, k_hi, group="timer"),
-        Factor("timer.drift", f"{t.name} timer drift (±{t.drift_ppm:g} ppm/K)", 0.0,
-               -t.drift_ppm, t.drift_ppm, group="timer"),
-        Factor("timer.vco", f"{t.name} timer supply sensitivity (±{t.supply_drift * 100:g} %/V)",
-               0.0, -t.supply_drift, t.supply_drift, group="timer"),
-        Factor("timer.ron", f"{t.name} discharge on-resistance (0…{t.r_on_max:.3g} Ω)",
-               0.4 * t.r_on_max, 0.0, t.r_on_max, group="timer"),
-        Factor("timer.ith", f"{t.name} threshold input current (0…{t.i_threshold_max:.3g} A)",
-               0.4 * t.i_threshold_max, 0.0, t.i_threshold_max, group="timer"),
+        Factor(
+            "timer.ratio",
+            f"{t.name} timer threshold ratio (±{t.initial * 100:g} % timing)",
+            k_nom,
+            k_lo,
+            k_hi,
+            group="timer",
+        ),
+        Factor(
+            "timer.drift",
+            f"{t.name} timer drift (±{t.drift_ppm:g} ppm/K)",
+            0.0,
+            -t.drift_ppm,
+            t.drift_ppm,
+            group="timer",
+        ),
+        Factor(
+            "timer.vco",
+            f"{t.name} timer supply sensitivity (±{t.supply_drift * 100:g} %/V)",
+            0.0,
+            -t.supply_drift,
+            t.supply_drift,
+            group="timer",
+        ),
+        Factor(
+            "timer.ron",
+            f"{t.name} discharge on-resistance (0…{t.r_on_max:.3g} Ω)",
+            0.4 * t.r_on_max,
+            0.0,
+            t.r_on_max,
+            group="timer",
+        ),
+        Factor(
+            "timer.ith",
+            f"{t.name} threshold input current (0…{t.i_threshold_max:.3g} A)",
+            0.4 * t.i_threshold_max,
+            0.0,
+            t.i_threshold_max,
+            group="timer",
+        ),
     ]
     if leakage > 0:
-        out.append(Factor("leak", f"node leakage (0…{leakage:.3g} A)", 0.0, 0.0, leakage,
-                          group="leakage"))
+        out.append(
+            Factor("leak", f"node leakage (0…{leakage:.3g} A)", 0.0, 0.0, leakage, group="leakage")
+        )
     return out
 
 
@@ -704,4 +911,3 @@ def by_ref(parts: Sequence[Part]) -> dict[str, Part]:
         ref → part.
     """
     return {p.ref: p for p in parts}
-

@@ -31,10 +31,10 @@ from timespec.families.base import (
     condition_factors,
     dielectric_findings,
     drain_current,
+    neighbour_parts,
     part_factors,
     resistor_part,
     scaled_time,
-    snap,
     supply_nominal_factor,
     target,
     timer_factors,
@@ -99,8 +99,14 @@ class OneShot:
         control = block.window("control")
         if control is not None:
             out.append(
-                Factor("control", f"control voltage ({control.low:g}…{control.high:g} V)",
-                       control.centre, control.low, control.high, group="operating")
+                Factor(
+                    "control",
+                    f"control voltage ({control.low:g}…{control.high:g} V)",
+                    control.centre,
+                    control.low,
+                    control.high,
+                    group="operating",
+                )
             )
         return out
 
@@ -153,7 +159,10 @@ class OneShot:
         For each allowed capacitor the resistor that puts the nominal width on
         target is found in closed form from ``t = R·C·ln(...)`` and refined once
         with the full nominal model (drain and on-resistance), then both
-        standard neighbours are kept.  If R is pinned, the same is done for C.
+        standard neighbours are kept (and, when the policy allows pairs, the
+        nearest series/parallel pairs between them, see
+        :func:`~timespec.families.base.neighbour_parts`).  If R is pinned, the
+        same is done for C.
         """
         req = block.requirement("width")
         assert req is not None
@@ -177,31 +186,33 @@ class OneShot:
         designs: list[Design] = []
         if pin_c is not None:
             c = np.array([pin_c.value])
-            r = _refine(lambda rr: width_for(rr, np.broadcast_to(c, rr.shape)), goal, goal / (c * np.log(3.0)))
-            for val in _both(snap(rp.series, r, rp.low, rp.high)):
-                designs.append(Design((resistor_part("R", val, rp), capacitor_part("C", 0, cp, pin_c))))
+            r = _refine(
+                lambda rr: width_for(rr, np.broadcast_to(c, rr.shape)),
+                goal,
+                goal / (c * np.log(3.0)),
+            )
+            for rpart in neighbour_parts("R", float(r[0]), rp):
+                designs.append(Design((rpart, capacitor_part("C", 0, cp, pin_c))))
             return designs
         if pin_r is not None:
             r_fixed = np.array([pin_r.value])
             c = _refine(
-                lambda cc: width_for(np.broadcast_to(r_fixed, cc.shape), cc), goal,
+                lambda cc: width_for(np.broadcast_to(r_fixed, cc.shape), cc),
+                goal,
                 goal / (r_fixed * np.log(3.0)),
             )
-            for val in _both(snap(cp.series, c, cp.low, cp.high)):
-                designs.append(Design((resistor_part("R", 0, rp, pin_r), capacitor_part("C", val, cp))))
+            for cpart in neighbour_parts("C", float(c[0]), cp):
+                designs.append(Design((resistor_part("R", 0, rp, pin_r), cpart)))
             return designs
         cs = candidate_values(cp.series, cp.low, cp.high)
         if cs.size == 0:
             return []
         r0 = goal / (cs * np.log(3.0))
         r = _refine(lambda rr: width_for(rr, cs), goal, r0)
-        below, above = snap(rp.series, r, rp.low, rp.high)
-        for cval, rb, ra in zip(cs, below, above, strict=True):
-            for rv in {float(rb), float(ra)}:
-                if np.isfinite(rv):
-                    designs.append(
-                        Design((resistor_part("R", rv, rp), capacitor_part("C", float(cval), cp)))
-                    )
+        for cval, rv in zip(cs, r, strict=True):
+            cpart = capacitor_part("C", float(cval), cp)
+            for rpart in neighbour_parts("R", float(rv), rp):
+                designs.append(Design((rpart, cpart)))
         return designs
 
     # -- rules --------------------------------------------------------------
@@ -239,14 +250,19 @@ class OneShot:
                     "trigger-outlasts-pulse",
                     f"the trigger is held low for {_seconds(trig)} but the pulse can be as short "
                     f"as {_seconds(lo)}: the output stays high until the trigger returns. "
-                    "Shorten the trigger (an RC differentiator on the trigger input) or lengthen the pulse.",
+                    "Shorten the trigger (an RC differentiator on the trigger input) "
+                    "or lengthen the pulse.",
                 )
             )
         spacing = block.number("spacing")
         if spacing is not None:
             recovery = float(
-                monostable.recovery_time(c.value * (1 + c.tolerance), timer.r_on_max,
-                                         block.conditions.supply.high, 2.0 / 3.0)
+                monostable.recovery_time(
+                    c.value * (1 + c.tolerance),
+                    timer.r_on_max,
+                    block.conditions.supply.high,
+                    2.0 / 3.0,
+                )
             )
             if spacing < hi + recovery:
                 out.append(
@@ -263,7 +279,8 @@ class OneShot:
                 Finding(
                     "warning",
                     "resistor-too-small",
-                    f"R = {format_rkm(r.value, 'resistance')}Ω is below {format_rkm(timer.r_min, 'resistance')}Ω: "
+                    f"R = {format_rkm(r.value, 'resistance')}Ω is below "
+                    f"{format_rkm(timer.r_min, 'resistance')}Ω: "
                     "the discharge transistor and supply carry needless current.",
                 )
             )
@@ -275,8 +292,9 @@ class OneShot:
                 Finding(
                     "error",
                     "drain-stalls-charge",
-                    f"with {drain:.3g} A drawn from the timing node the capacitor never reaches the "
-                    f"threshold through R = {format_rkm(r.value, 'resistance')}Ω at {v:g} V.",
+                    f"with {drain:.3g} A drawn from the timing node the capacitor never "
+                    f"reaches the threshold through R = {format_rkm(r.value, 'resistance')}Ω "
+                    f"at {v:g} V.",
                 )
             )
         elif drain * r.value > 0.01 * v * (1 - timer.ratio_band[1]):
@@ -304,8 +322,3 @@ def _refine(model: object, goal: float, r0: FloatArray) -> FloatArray:
             ratio = np.where(np.isfinite(w) & (w > 0), goal / w, np.nan)
         r = r * ratio
     return r
-
-
-def _both(pair: tuple[FloatArray, FloatArray]) -> list[float]:
-    vals = {float(v) for arr in pair for v in np.atleast_1d(arr) if np.isfinite(v)}
-    return sorted(vals)

@@ -1,0 +1,284 @@
+"""The astable family end to end: spec text → solver → worst case and design rules.
+
+Scenarios are our own (front-panel blinkers and a fan-tach simulator on a
+burn-in rack).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from timespec.analysis import nominal_inputs, worst_case
+from timespec.errors import SpecValueError
+from timespec.families.astable import Astable, duty_band, reachable_variants
+from timespec.families.base import Design
+from timespec.model import Block
+from timespec.solver import solve_block
+from timespec.spec import parse
+
+FAM = Astable()
+
+POLICY = """  supply 12 V ±5%
+  ambient 0 degC to 50 degC
+  resistors E96 1% 100 ppm/K, 1k to 1M
+  capacitors E12 5% C0G, 1n to 100n
+"""
+
+
+def block(body: str, policy: str = POLICY) -> Block:
+    return parse("astable rack_blink:\n" + body + policy).blocks[0]
+
+
+def codes(result_findings: object) -> set[str]:
+    return {f.code for f in result_findings}  # type: ignore[attr-defined]
+
+
+# --------------------------------------------------------------------------
+# nominal relations
+
+
+def test_classic_nominal_relations() -> None:
+    b = block("  frequency 2 kHz ±12%\n  duty 65% ±5%\n  circuit classic\n")
+    res = solve_block(b)
+    assert res.verdict == "meets"
+    assert res.best is not None
+    design = res.best.design
+    assert design.variant == "classic"
+    ra, rb, c = (design.part(r).value for r in ("RA", "RB", "C"))
+    x = nominal_inputs(FAM.factors(b, design))
+    # timer spreads to the ideal timer: thresholds 2/3 and 1/3 of the supply, ideal switch,
+    # no threshold current
+    x["timer.ratio"] = np.array([2.0 / 3.0])
+    x["timer.ron"] = np.array([0.0])
+    x["timer.ith"] = np.array([0.0])
+    out = FAM.evaluate(b, "classic")(x)
+    # common practice: f = 1/(ln 2·(RA + 2RB)·C) ≈ 1.443/((RA + 2RB)·C)
+    assert out["frequency"][0] == pytest.approx(1.0 / (math.log(2) * (ra + 2 * rb) * c), rel=1e-9)
+    assert out["frequency"][0] == pytest.approx(1.443 / ((ra + 2 * rb) * c), rel=1e-3)
+    # common practice: duty = (RA + RB)/(RA + 2RB); tH = (RA + RB)·C·ln 2, tL = RB·C·ln 2
+    assert out["duty"][0] == pytest.approx((ra + rb) / (ra + 2 * rb), rel=1e-9)
+    assert out["high"][0] == pytest.approx((ra + rb) * c * math.log(2), rel=1e-9)
+    assert out["low"][0] == pytest.approx(rb * c * math.log(2), rel=1e-9)
+    assert out["period"][0] == pytest.approx(1.0 / out["frequency"][0], rel=1e-12)
+
+
+def test_solved_design_reports_every_output() -> None:
+    res = solve_block(block("  period 500 us ±12%\n  duty 65% ±5%\n"))
+    assert res.best is not None
+    assert {o.name for o in res.best.outputs} == {"frequency", "period", "duty", "high", "low"}
+
+
+# --------------------------------------------------------------------------
+# worst case encloses a dense random sweep of the factor box
+
+
+SWEEP_CASES = [
+    ("classic", "  frequency 2 kHz ±12%\n  duty 65% ±5%\n  circuit classic\n", POLICY),
+    ("diode", "  frequency 2 kHz ±12%\n  duty 30% ±5%\n  circuit diode\n", POLICY),
+    (
+        "feedback",
+        "  frequency 2 kHz ±12%\n  duty 50% ±4%\n  circuit feedback\n  timer cmos\n",
+        POLICY.replace("12 V ±5%", "5 V ±10%"),
+    ),
+]
+
+
+@pytest.mark.parametrize(("variant", "body", "policy"), SWEEP_CASES)
+def test_worst_case_encloses_random_sweep(variant: str, body: str, policy: str) -> None:
+    b = block(body, policy)
+    res = solve_block(b)
+    assert res.best is not None
+    design = res.best.design
+    assert design.variant == variant
+    facs = FAM.factors(b, design)
+    model = FAM.evaluate(b, variant)
+    ex = worst_case(facs, model)
+    rng = np.random.default_rng(7)
+    n = 40_000
+    x = {
+        f.name: (np.full(n, f.nominal) if f.low == f.high else rng.uniform(f.low, f.high, n))
+        for f in facs
+    }
+    out = model(x)
+    for name, e in ex.items():
+        y = out[name]
+        assert np.all(np.isfinite(y))
+        span = e.high - e.low
+        # corners bound a model monotone in each factor (extreme-value analysis, common practice)
+        assert y.min() >= e.low - 1e-9 * span, name
+        assert y.max() <= e.high + 1e-9 * span, name
+
+
+# --------------------------------------------------------------------------
+# variant choice and unreachable duty
+
+
+def test_classic_cannot_make_thirty_percent() -> None:
+    res = solve_block(block("  frequency 2 kHz ±12%\n  duty 30% ±5%\n  circuit classic\n"))
+    assert res.verdict == "infeasible"
+    assert res.best is not None
+    found = {f.code: f for f in res.best.findings}
+    assert "duty-out-of-reach" in found
+    msg = found["duty-out-of-reach"].message
+    assert "above 50 %" in msg and "circuit diode" in msg
+    # the closest design puts RA at its floor: duty as low as the circuit allows (about 50 %,
+    # a little under with the discharge on-resistance in series with RB)
+    assert res.best.design.part("RA").value == 1e3
+    assert res.best.output("duty").nominal == pytest.approx(0.5, abs=0.02)
+
+
+def test_automatic_choice_for_thirty_percent_is_diode() -> None:
+    b = block("  frequency 2 kHz ±12%\n  duty 30% ±5%\n")
+    assert reachable_variants(b) == ("diode",)
+    res = solve_block(b)
+    assert res.verdict == "meets"
+    assert res.best is not None and res.best.design.variant == "diode"
+    assert [p.ref for p in res.best.design.parts] == ["RA", "RB", "C"]
+
+
+def test_fifty_percent_with_cmos_can_use_feedback() -> None:
+    policy = POLICY.replace("12 V ±5%", "5 V ±10%")
+    b = block("  frequency 2 kHz ±12%\n  duty 50% ±4%\n  timer cmos\n", policy)
+    assert "feedback" in reachable_variants(b)
+    res = solve_block(
+        block("  frequency 2 kHz ±12%\n  duty 50% ±4%\n  timer cmos\n  circuit feedback\n", policy)
+    )
+    assert res.verdict == "meets"
+    assert res.best is not None and res.best.design.variant == "feedback"
+    assert [p.ref for p in res.best.design.parts] == ["R", "C"]
+
+
+def test_feedback_not_offered_with_bipolar_timer() -> None:
+    b = block("  frequency 2 kHz ±12%\n  duty 50% ±4%\n  timer bipolar\n")
+    assert "feedback" not in reachable_variants(b)
+    res = solve_block(
+        block("  frequency 2 kHz ±12%\n  duty 50% ±10%\n  timer bipolar\n  circuit feedback\n")
+    )
+    assert res.verdict == "infeasible"
+    assert res.best is not None
+    assert "feedback-needs-rail-output" in codes(res.best.findings)
+
+
+def test_duty_band_from_high_and_low() -> None:
+    # D = tH/(tH + tL): 1 ms high, 3 ms low → 25 % (definition of duty cycle)
+    b = block("  high 1 ms ±10%\n  low 3 ms ±10%\n")
+    lo, hi = duty_band(b)
+    assert lo == pytest.approx(0.9 / (0.9 + 3.3))
+    assert hi == pytest.approx(1.1 / (1.1 + 2.7))
+    assert "classic" not in reachable_variants(b)
+
+
+# --------------------------------------------------------------------------
+# design rules
+
+
+def test_frequency_beyond_bipolar_class_is_an_error() -> None:
+    res = solve_block(
+        block(
+            "  frequency 600 kHz ±15%\n  timer bipolar\n",
+            POLICY.replace("1n to 100n", "100p to 100n"),
+        )
+    )
+    assert res.verdict == "infeasible"
+    assert res.best is not None
+    found = {f.code: f for f in res.best.findings}
+    assert "frequency-above-class" in found
+    assert "timer cmos" in found["frequency-above-class"].message
+
+
+def test_discharge_current_limit_names_minimum_ra() -> None:
+    # 12.6 V / 470 Ω ≈ 27 mA through the discharge pin (Ohm's law), above the class limit
+    res = solve_block(block("  frequency 2 kHz ±30%\n  use RA 470, RB 10k, C 33n\n"))
+    assert res.mode == "checked"
+    assert res.verdict == "fails"
+    assert res.best is not None
+    found = {f.code: f for f in res.best.findings}
+    assert "discharge-current" in found
+    assert "at least" in found["discharge-current"].message
+
+
+def test_small_discharge_resistor_is_a_warning() -> None:
+    res = solve_block(block("  frequency 20 kHz ±30%\n  use RA 10k, RB 820, C 33n\n"))
+    assert res.best is not None
+    found = {f.code: f.severity for f in res.best.findings}
+    assert found.get("resistor-too-small") == "warning"
+
+
+def test_pinned_design_is_checked_not_rechosen() -> None:
+    b = block(
+        "  frequency 2 kHz ±12%\n  duty 65% ±5%\n  circuit classic\n  use RA 26k7, RB 30k9, C 8n2\n"
+    )
+    res = solve_block(b)
+    assert res.mode == "checked"
+    assert res.verdict == "meets"
+    assert res.best is not None
+    assert [p.value for p in res.best.design.parts] == [26.7e3, 30.9e3, 8.2e-9]
+
+
+def test_partly_pinned_capacitor_is_kept() -> None:
+    res = solve_block(block("  frequency 2 kHz ±12%\n  duty 30% ±5%\n  use C 10n\n"))
+    assert res.best is not None
+    assert res.best.design.part("C").value == 10e-9
+    assert res.best.design.part("C").pinned
+    assert res.mode == "solved"
+
+
+def test_pinned_refs_must_fit_the_circuit() -> None:
+    with pytest.raises(SpecValueError, match="does not exist in the feedback"):
+        FAM.candidates(block("  frequency 2 kHz ±12%\n  circuit feedback\n  use RA 10k\n"))
+
+
+def test_solver_completes_for_each_circuit() -> None:
+    # speed sanity only: every automatic case finishes and names a variant
+    for body in (
+        "  frequency 2 kHz ±12%\n",
+        "  high 1 ms ±10%\n  low 3 ms ±10%\n",
+        "  period 1 ms ±12%\n  duty 70% ±5%\n",
+    ):
+        res = solve_block(block(body))
+        assert res.best is not None
+        assert res.best.design.variant in ("classic", "diode", "feedback")
+
+
+# --------------------------------------------------------------------------
+# properties
+
+
+@settings(max_examples=15, deadline=None)
+@given(
+    k=st.floats(0.1, 10.0),
+    ra=st.floats(2e3, 500e3),
+    rb=st.floats(2e3, 500e3),
+    variant=st.sampled_from(["classic", "diode"]),
+)
+def test_times_scale_with_capacitance(k: float, ra: float, rb: float, variant: str) -> None:
+    # first-order RC law (any circuit-theory handbook): every time is proportional to C,
+    # so the duty cycle does not depend on C
+    b = block("  frequency 2 kHz ±12%\n")
+    design = FAM._design(b, variant, {"RA": ra, "RB": rb, "C": 10e-9})
+    x = nominal_inputs(FAM.factors(b, design))
+    model = FAM.evaluate(b, variant)
+    one = model(x)
+    x["C.value"] = x["C.value"] * k
+    scaled = model(x)
+    assert scaled["period"][0] == pytest.approx(k * one["period"][0], rel=1e-9)
+    assert scaled["duty"][0] == pytest.approx(one["duty"][0], rel=1e-9)
+
+
+def test_stalled_oscillator_reports_inf_not_nan() -> None:
+    b = block(
+        "  frequency 2 kHz ±12%\n  timer bipolar\n  circuit feedback\n",
+        POLICY.replace("12 V ±5%", "5 V ±10%"),
+    )
+    design = Design(FAM._design(b, "feedback", {"R": 10e3, "C": 10e-9}).parts, "feedback")
+    x = nominal_inputs(FAM.factors(b, design))
+    x["output.drop"] = np.array([1.7])  # bipolar output 1.7 V down: 2.8 V < upper threshold 3 V
+    x["supply"] = np.array([4.5])
+    out = FAM.evaluate(b, "feedback")(x)
+    assert math.isinf(out["high"][0]) and math.isinf(out["duty"][0])
+    assert out["frequency"][0] == 0.0

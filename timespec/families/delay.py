@@ -1,0 +1,486 @@
+"""The ``delay`` family: an RC network charged from the supply into an input threshold.
+
+Parts: ``R`` (from the supply to the node) and ``C`` (from the node to ground).
+Output: ``delay``, the time from the supply step until the node crosses the
+threshold of the input that watches it (a logic or Schmitt input releasing a
+reset, enabling a regulator ...).
+
+Modelled (see :mod:`timespec.physics.rcdelay`): part tolerance, tempco or
+dielectric drift and ageing; the supply window; the input threshold, given as a
+share of the supply (it then tracks the supply) or in volts (it does not); the
+capacitor voltage at the start (``start``, default 0 V); and a drain current at
+the node (``leakage``: capacitor, board and input leakage together), which pulls
+the node's final value down by ``i·R``.
+
+Not modelled, and said so in the findings: the supply's own rise time (the
+supply is taken to step up at once) and the discharge of the capacitor between
+power cycles.
+
+Every output is monotone in every factor (the delay grows with R, C, the
+threshold and the drain; with a ratiometric threshold the sign of its change with
+the supply is fixed by ``(1 − k)·V0 − k·i·R``, with a threshold in volts it falls
+as the supply rises), so the corners of the factor box give the exact worst case.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Mapping
+
+import numpy as np
+
+from timespec.analysis import Factor, nominal_inputs, worst_case
+from timespec.families.base import (
+    Design,
+    Evaluate,
+    Family,
+    Finding,
+    FloatArray,
+    Inputs,
+    Output,
+    apply_part,
+    candidate_values,
+    capacitor_part,
+    condition_factors,
+    dielectric_findings,
+    part_factors,
+    resistor_part,
+    snap,
+)
+from timespec.model import Block, Window
+from timespec.physics import rcdelay
+from timespec.rkm import format_rkm
+
+__all__ = ["Delay", "aim_nominal", "rc_candidates", "seconds"]
+
+
+def seconds(t: float) -> str:
+    """Format a time for a message.
+
+    Parameters
+    ----------
+    t
+        Seconds.
+
+    Returns
+    -------
+    str
+        E.g. ``"12.5 ms"``.
+    """
+    if not math.isfinite(t):
+        return "never"
+    if t >= 1.0:
+        return f"{t:.4g} s"
+    if t >= 1e-3:
+        return f"{t * 1e3:.4g} ms"
+    if t >= 1e-6:
+        return f"{t * 1e6:.4g} µs"
+    return f"{t * 1e9:.4g} ns"
+
+
+def aim_nominal(window: Window, low_ratio: float, high_ratio: float) -> float:
+    """The nominal value that centres a worst-case window on a requirement.
+
+    Parameters
+    ----------
+    window
+        The requirement on an output.
+    low_ratio, high_ratio
+        Worst-case low and high of the output divided by its nominal value
+        (from a probe design; the spread is close to proportional).
+
+    Returns
+    -------
+    float
+        The nominal to aim at.
+
+    Notes
+    -----
+    Two-sided window ``[L, H]``: ``(L + H)/(low_ratio + high_ratio)``, which puts
+    the middle of the worst-case window on the middle of the requirement and so
+    minimises the larger excursion when the window cannot be met.  Upper bound
+    only: the worst-case high at 90 % of the bound; lower bound only: the
+    worst-case low at 110 % of the bound.
+
+    References
+    ----------
+    Centring a toleranced quantity in its window, common practice.
+    """
+    if math.isinf(window.high):
+        return 1.1 * window.low / low_ratio
+    if window.low <= 0.0:
+        return 0.9 * window.high / high_ratio
+    return (window.low + window.high) / (low_ratio + high_ratio)
+
+
+def _threshold_window(block: Block) -> Window:
+    win = block.window("threshold")
+    assert win is not None, "the spec layer requires a threshold in a delay block"
+    return win
+
+
+def _threshold_volts(block: Block) -> tuple[float, float]:
+    """Lowest and highest threshold voltage over the supply window."""
+    win = _threshold_window(block)
+    s = block.conditions.supply
+    if win.kind == "ratio":
+        return win.low * s.low, win.high * s.high
+    return win.low, win.high
+
+
+class Delay:
+    """RC delay into an input threshold."""
+
+    kind = "delay"
+
+    def outputs(self, block: Block) -> tuple[Output, ...]:
+        """Outputs: the delay.
+
+        Parameters
+        ----------
+        block
+            The block.
+
+        Returns
+        -------
+        tuple of Output
+            ``delay``.
+        """
+        return (Output("delay", "time", "delay to the input threshold"),)
+
+    # -- model --------------------------------------------------------------
+    def factors(self, block: Block, design: Design) -> list[Factor]:
+        """Varying inputs of a design.
+
+        Parameters
+        ----------
+        block
+            The block.
+        design
+            Parts ``R`` and ``C``.
+
+        Returns
+        -------
+        list of Factor
+            Parts, ambient and supply, ``threshold`` (a share of the supply or
+            volts, uniform over its window, nominal at its centre) and ``leak``
+            (0 … the ``leakage`` bound, A) when a leakage is given.
+        """
+        out: list[Factor] = []
+        for part in design.parts:
+            out.extend(part_factors(block, part))
+        out.extend(condition_factors(block))
+        win = _threshold_window(block)
+        if win.kind == "ratio":
+            label = f"input threshold ({win.low:g}…{win.high:g} of supply)"
+        else:
+            label = f"input threshold ({win.low:g}…{win.high:g} V)"
+        out.append(Factor("threshold", label, win.centre, win.low, win.high, group="input"))
+        leak = block.number("leakage") or 0.0
+        if leak > 0:
+            out.append(
+                Factor("leak", f"node leakage (0…{leak:.3g} A)", 0.0, 0.0, leak, group="leakage")
+            )
+        return out
+
+    def evaluate(self, block: Block, variant: str) -> Evaluate:
+        """The vectorised model.
+
+        Parameters
+        ----------
+        block
+            The block.
+        variant
+            Unused (one circuit).
+
+        Returns
+        -------
+        Evaluate
+            Samples → ``{"delay": ...}`` in seconds (``inf`` where the node never
+            reaches the threshold).
+
+        Notes
+        -----
+        ``t = R·C·ln((V − i·R − V0)/(V − i·R − Vth))`` with ``Vth = k·V`` for a
+        ratiometric threshold.
+
+        References
+        ----------
+        First-order RC charging law, any circuit-theory handbook.
+        """
+        ratio = _threshold_window(block).kind == "ratio"
+        start = block.number("start") or 0.0
+
+        def evaluate(x: Inputs) -> dict[str, FloatArray]:
+            r = apply_part(x, "R")
+            c = apply_part(x, "C")
+            v = x["supply"]
+            vth = x["threshold"] * v if ratio else x["threshold"]
+            i = x.get("leak", np.zeros(1))
+            t = rcdelay.charge_time(r, c, v, start, vth, i)
+            return {"delay": np.asarray(t, dtype=np.float64)}
+
+        return evaluate
+
+    # -- solver -------------------------------------------------------------
+    def candidates(self, block: Block) -> list[Design]:
+        """Candidate (R, C) pairs: for each capacitor, the continuous R, snapped.
+
+        Parameters
+        ----------
+        block
+            The block.
+
+        Returns
+        -------
+        list of Design
+            Candidates; pinned parts are kept as given.
+
+        Notes
+        -----
+        A probe design gives the worst-case spread of the delay relative to its
+        nominal (it is close to proportional); :func:`aim_nominal` turns the
+        requirement into the nominal delay that centres that spread.  For each
+        allowed capacitor the resistor that gives this nominal follows from
+        ``t = R·C·ln((V − V0)/(V − Vth))``, refined twice with the full nominal
+        model (drain included), and both standard neighbours are kept.  With R
+        pinned the same is done for C.
+        """
+        return rc_candidates(self, block, "delay")
+
+    # -- rules --------------------------------------------------------------
+    def findings(
+        self, block: Block, design: Design, extremes: Mapping[str, tuple[float, float]]
+    ) -> list[Finding]:
+        """Design rules of an RC delay.
+
+        Parameters
+        ----------
+        block
+            The block.
+        design
+            The design.
+        extremes
+            Worst-case ``(low, high)`` of each output.
+
+        Returns
+        -------
+        list of Finding
+            Threshold never reached or already passed at the start (errors);
+            threshold in volts on a varying supply, drain shifting the delay
+            (warnings); supply taken as a step, discharge between power cycles,
+            slow edge at the input (notes); dielectric.
+        """
+        out: list[Finding] = []
+        lo, hi = extremes["delay"]
+        r, c = design.part("R"), design.part("C")
+        s = block.conditions.supply
+        win = _threshold_window(block)
+        vth_lo, vth_hi = _threshold_volts(block)
+        start = block.number("start") or 0.0
+        leak = block.number("leakage") or 0.0
+        r_max = r.value * (1 + r.tolerance)
+        c_max = c.value * (1 + c.tolerance)
+        settle = s.low - leak * r_max
+        if not math.isfinite(hi):
+            out.append(
+                Finding(
+                    "error",
+                    "threshold-never-reached",
+                    f"at {s.low:g} V with {leak:.3g} A drawn from the node the capacitor settles "
+                    f"near {settle:.3g} V, not above the highest threshold {vth_hi:.3g} V: the "
+                    "input may never switch. Lower the threshold, raise the supply or use a "
+                    "smaller R with a larger C.",
+                )
+            )
+        elif leak > 0 and leak * r_max > 0.01 * (s.low - vth_hi):
+            out.append(
+                Finding(
+                    "warning",
+                    "leakage-shifts-delay",
+                    f"leakage ({leak:.3g} A) through R = {format_rkm(r.value, 'resistance')}Ω "
+                    f"drops {leak * r_max:.3g} V, more than 1 % of the {s.low - vth_hi:.3g} V "
+                    "left above the threshold; a smaller R with a larger C is more robust.",
+                )
+            )
+        if start >= vth_lo:
+            out.append(
+                Finding(
+                    "error",
+                    "start-above-threshold",
+                    f"the capacitor starts at {start:g} V, at or above the lowest threshold "
+                    f"{vth_lo:.3g} V: the delay can be zero. Discharge the capacitor fully "
+                    "before the delay starts.",
+                )
+            )
+        if win.kind == "voltage" and s.high > s.low:
+            out.append(
+                Finding(
+                    "warning",
+                    "threshold-in-volts",
+                    f"the threshold is fixed in volts ({win.low:g}…{win.high:g} V) while the "
+                    f"supply moves over {s.low:g}…{s.high:g} V, so it spans "
+                    f"{vth_lo / s.high:.3g}…{vth_hi / s.low:.3g} of the supply and the delay "
+                    "follows the supply. A ratiometric input (threshold a share of the "
+                    "supply, as in CMOS logic) or a regulated supply for R removes this term.",
+                )
+            )
+        out.append(
+            Finding(
+                "note",
+                "supply-taken-as-step",
+                "the delay is counted from a supply that steps up at once; a supply that "
+                "ramps up adds to the delay (up to about its rise time), so check the "
+                "slowest power-up of the source.",
+            )
+        )
+        t_empty = float(
+            rcdelay.charge_time(r_max, c_max, 0.0, s.high, max(0.1 * vth_lo, 1e-3 * s.high))
+        )
+        out.append(
+            Finding(
+                "note",
+                "discharge-between-cycles",
+                "the capacitor must empty between power cycles or a short supply dip gives a "
+                f"short delay: through R alone (supply pulled to 0 V) it takes up to "
+                f"{seconds(t_empty)} to fall to 10 % of the lowest threshold. A diode across "
+                "R (anode at the node, cathode at the supply) empties it as fast as the "
+                "supply falls.",
+            )
+        )
+        if math.isfinite(lo) and lo > 0:
+            slope = (s.low - leak * r_max - vth_hi) / (r_max * c_max)
+            if slope > 0 and slope < 1e6:  # slower than 1 V/µs at the crossing
+                out.append(
+                    Finding(
+                        "note",
+                        "slow-input-edge",
+                        f"the node crosses the threshold at about {slope:.3g} V/s; feed a "
+                        "Schmitt-trigger input (a plain logic input can oscillate and draw "
+                        "cross-conduction current while it sits near its threshold).",
+                    )
+                )
+        out.extend(dielectric_findings(block, c))
+        return out
+
+
+# --------------------------------------------------------------------------
+# shared narrowing for two-part RC families (this module and relaxation)
+
+
+def _time_window(block: Block, quantity: str) -> tuple[Window, bool]:
+    """The requirement on ``quantity`` (or period/frequency), and whether it is a frequency."""
+    for name in (quantity, "period", "frequency"):
+        req = block.requirement(name)
+        if req is not None:
+            return req.window, name == "frequency"
+    raise ValueError(f"block {block.name!r} has no timing requirement")
+
+
+def rc_candidates(
+    fam: Family, block: Block, quantity: str, r_limits: tuple[float, float] | None = None
+) -> list[Design]:
+    """Candidate (R, C) designs for a circuit whose timing scales with R·C.
+
+    Parameters
+    ----------
+    fam
+        The family (its ``factors`` and ``evaluate`` are used).
+    block
+        The block.
+    quantity
+        The timing output that the requirement is on (``"delay"``, ``"period"``);
+        a ``frequency`` requirement is used through ``1/period``.
+    r_limits
+        Extra bounds on R (e.g. a gate class's usable range), intersected with
+        the resistor policy's range when they overlap.
+
+    Returns
+    -------
+    list of Design
+        Both standard neighbours of the continuous part for every allowed value
+        of the other; pinned parts as given.
+
+    Notes
+    -----
+    The output is nearly proportional to R·C, so a probe design's worst case
+    gives the spread ratios, :func:`aim_nominal` the nominal that centres them,
+    and two multiplicative corrections with the nominal model (drain included)
+    the continuous value.
+    """
+    rp, cp = block.resistors, block.capacitors
+    pin_r, pin_c = block.pinned_part("R"), block.pinned_part("C")
+    if pin_r is not None and pin_c is not None:
+        return [Design((resistor_part("R", 0, rp, pin_r), capacitor_part("C", 0, cp, pin_c)))]
+    r_lo, r_hi = rp.low, rp.high
+    if r_limits is not None and max(r_lo, r_limits[0]) <= min(r_hi, r_limits[1]):
+        r_lo, r_hi = max(r_lo, r_limits[0]), min(r_hi, r_limits[1])
+    window, is_freq = _time_window(block, quantity)
+    model = fam.evaluate(block, "")
+    key = quantity if quantity == "delay" else "period"
+    r_probe = math.sqrt(r_lo * r_hi) if pin_r is None else pin_r.value
+    c_probe = math.sqrt(cp.low * cp.high) if pin_c is None else pin_c.value
+    probe = Design((resistor_part("R", r_probe, rp), capacitor_part("C", c_probe, cp)))
+    probe_factors = fam.factors(block, probe)
+    ex = worst_case(probe_factors, model)
+    e = ex["frequency"] if is_freq else ex[key]
+    if not (e.nominal > 0 and math.isfinite(e.nominal) and math.isfinite(e.high) and e.low > 0):
+        low_ratio = high_ratio = 1.0
+    else:
+        low_ratio, high_ratio = e.low / e.nominal, e.high / e.nominal
+    aim = aim_nominal(window, low_ratio, high_ratio)
+    goal = 1.0 / aim if is_freq else aim  # a time
+    base = nominal_inputs(probe_factors)
+    k0 = float(model(base)[key][0]) / (r_probe * c_probe)  # time per R·C at nominal
+    if not (math.isfinite(k0) and k0 > 0):
+        return []
+
+    def time_for(r: FloatArray, c: FloatArray) -> FloatArray:
+        n = max(r.size, c.size)
+        x = {k: np.broadcast_to(v, (n,)) for k, v in base.items()}
+        x["R.value"] = np.broadcast_to(np.asarray(r, dtype=np.float64), (n,))
+        x["C.value"] = np.broadcast_to(np.asarray(c, dtype=np.float64), (n,))
+        return model(x)[key]
+
+    designs: list[Design] = []
+    if pin_c is not None:
+        c = np.array([pin_c.value])
+        r = _refine(lambda rr: time_for(rr, c), goal, goal / (c * k0))
+        below, above = snap(rp.series, r, r_lo, r_hi)
+        for val in _values(below, above):
+            designs.append(Design((resistor_part("R", val, rp), capacitor_part("C", 0, cp, pin_c))))
+        return designs
+    if pin_r is not None:
+        rv = np.array([pin_r.value])
+        c = _refine(lambda cc: time_for(rv, cc), goal, goal / (rv * k0))
+        below, above = snap(cp.series, c, cp.low, cp.high)
+        for val in _values(below, above):
+            designs.append(Design((resistor_part("R", 0, rp, pin_r), capacitor_part("C", val, cp))))
+        return designs
+    cs = candidate_values(cp.series, cp.low, cp.high)
+    if cs.size == 0:
+        return []
+    r = _refine(lambda rr: time_for(rr, cs), goal, goal / (cs * k0))
+    below, above = snap(rp.series, r, r_lo, r_hi)
+    for cval, rb, ra in zip(cs, below, above, strict=True):
+        for val in _values(np.array([rb]), np.array([ra])):
+            designs.append(
+                Design((resistor_part("R", val, rp), capacitor_part("C", float(cval), cp)))
+            )
+    return designs
+
+
+def _refine(model: Callable[[FloatArray], FloatArray], goal: float, x0: FloatArray) -> FloatArray:
+    """Two multiplicative corrections: scale the guess by goal / model(guess)."""
+    x = np.asarray(x0, dtype=np.float64)
+    for _ in range(2):
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            t = np.asarray(model(x), dtype=np.float64)
+            ratio = np.where(np.isfinite(t) & (t > 0), goal / t, np.nan)
+        x = x * ratio
+    return x
+
+
+def _values(below: FloatArray, above: FloatArray) -> list[float]:
+    vals = {float(v) for arr in (below, above) for v in np.atleast_1d(arr) if np.isfinite(v)}
+    return sorted(vals)

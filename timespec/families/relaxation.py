@@ -1,0 +1,573 @@
+"""The ``relaxation`` family: a Schmitt-inverter RC oscillator.
+
+Parts: ``R`` (from the inverter's output back to its input) and ``C`` (from the
+input to ground).  Outputs: ``frequency``, ``period``, ``duty``, ``high`` and
+``low`` (the output's high and low times).
+
+The output swings rail to rail; the capacitor runs between the falling
+threshold VT− and the rising threshold VT+, so (see
+:mod:`timespec.physics.relaxation`)::
+
+    T = R·C·[ln(VT+/VT−) + ln((V − VT−)/(V − VT+))]
+
+Thresholds
+----------
+A gate class gives VT+ and VT− as bands (min … max, fractions of the supply)
+and a minimum hysteresis ``h``; the bands alone would allow VT+ below VT−.  The
+feasible threshold pairs form the band box less a corner, ``VT+ − VT− ≥ h``.
+Input leakage ``i`` shifts both thresholds, relative to the rails, by
+``e = i·R/V``, so every timing output depends only on the hysteresis
+``w = VT+ − VT−`` and the centre ``c = (VT+ + VT−)/2 + e``::
+
+    tH = R·C·ln((1 − c + w/2)/(1 − c − w/2)),  tL = R·C·ln((c + w/2)/(c − w/2))
+
+Two factors span the feasible set exactly:
+
+* ``gate.hysteresis`` is a position ``u ∈ [0, 1]`` mapped piecewise
+  linearly onto ``w`` from ``max(h, VT+min − VT−max)`` to ``VT+max − VT−min``,
+  with knots at ``VT+min − VT−min`` and ``VT+max − VT−max`` placed on grid
+  nodes (see :func:`width_knots`; the duty cycle's extremes sit there);
+* ``gate.centre`` is a position ``γ ∈ [−1, 1]`` of the threshold centre within
+  the range the bands allow at that ``w``, ``[a(w), b(w)]`` with
+  ``a(w) = max(VT−min, VT+min − w) + w/2`` and ``b(w) = min(VT−max, VT+max − w) + w/2``.
+  ``γ = 0`` is the point of that range nearest ``1/2 − e`` (the centre that
+  puts the thresholds symmetric between the rails once the leakage shift is
+  added, where the period is shortest); ``γ = ±1`` are its ends, linear
+  between.
+
+Why this parametrisation: ``T`` is convex in ``c`` with its minimum at
+``c = 1/2``; ``tH`` rises and ``tL`` falls with ``c``; all three rise with
+``w`` along any path with ``|dc/dw| ≤ 1/2``, and ``c`` moves with ``w`` at
+slope ±1/2 or less at fixed ``γ``.  So the extremes of period, frequency, high
+and low time over the feasible set sit at ``w`` at an end and ``γ ∈ {−1, 0, 1}``,
+and those of the duty cycle at the band corners (``γ = ±1`` at a knot): all nodes
+of the worst-case grid (``gate.centre``, ``gate.hysteresis`` and the signed ``leak`` are searched on
+the odd grid).  This holds while the circuit oscillates at every corner; where
+leakage through R pushes a threshold past a rail the design already fails
+(``no-oscillation``) and the duty cycle's low end is only a grid estimate.  A plain
+clip of VT− to ``VT+ − h`` would hide the shortest period at a kink between
+grid nodes.  Monte Carlo draws ``w`` and ``γ`` uniformly: the datasheet gives
+bands, not distributions, so that spread is an assumption.
+
+Leakage is the gate's input current, ``±i_input_max``, plus the ``leakage``
+bound of the capacitor and board (a drain only).
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping
+from dataclasses import dataclass
+
+import numpy as np
+
+from timespec.analysis import Factor, grouped_shares, rss, worst_case
+from timespec.families.base import (
+    Design,
+    Evaluate,
+    Finding,
+    FloatArray,
+    Inputs,
+    Output,
+    apply_part,
+    condition_factors,
+    dielectric_findings,
+    part_factors,
+)
+from timespec.families.delay import rc_candidates, seconds
+from timespec.model import Block, Window
+from timespec.physics import relaxation
+from timespec.rkm import format_rkm
+
+__all__ = ["Relaxation", "Thresholds", "thresholds", "width_knots"]
+
+#: Factor group of the gate's thresholds (used for the share of the spread).
+GATE_GROUP = "gate thresholds"
+
+
+@dataclass(frozen=True)
+class Thresholds:
+    """Threshold bands of a Schmitt input, as fractions of the supply.
+
+    Attributes
+    ----------
+    rise_low, rise_typ, rise_high
+        VT+ band and typical value.
+    fall_low, fall_typ, fall_high
+        VT− band and typical value.
+    hysteresis_min
+        Smallest VT+ − VT−.
+    """
+
+    rise_low: float
+    rise_typ: float
+    rise_high: float
+    fall_low: float
+    fall_typ: float
+    fall_high: float
+    hysteresis_min: float
+
+    @property
+    def width_low(self) -> float:
+        """Smallest feasible hysteresis."""
+        return max(self.hysteresis_min, self.rise_low - self.fall_high)
+
+    @property
+    def width_high(self) -> float:
+        """Largest feasible hysteresis (at least :attr:`width_low`)."""
+        return max(self.rise_high - self.fall_low, self.width_low)
+
+    @property
+    def consistent(self) -> bool:
+        """Whether some pair in the bands has at least the minimum hysteresis."""
+        return self.rise_high - self.fall_low >= self.hysteresis_min
+
+
+def _band(
+    gate_band: tuple[float, float, float], override: Window | None, supply: Window
+) -> tuple[float, float, float]:
+    """(low, typ, high) as fractions of the supply, from the class or an override."""
+    if override is None:
+        return gate_band
+    if override.kind == "ratio":
+        lo, hi = override.low, override.high
+        typ = override.centre
+    else:  # volts: the widest share over the supply window (conservative)
+        lo, hi = override.low / supply.high, override.high / supply.low
+        typ = override.centre / supply.centre
+    return lo, min(max(typ, lo), hi), hi
+
+
+def thresholds(block: Block) -> Thresholds:
+    """The threshold bands of a relaxation block (gate class, then overrides).
+
+    Parameters
+    ----------
+    block
+        A relaxation block (``block.gate`` set).
+
+    Returns
+    -------
+    Thresholds
+        Bands as fractions of the supply.
+
+    Notes
+    -----
+    An override written in volts becomes the widest share it can be over the
+    supply window, ``[low/Vmax, high/Vmin]``: thresholds fixed in volts do not
+    track the supply, and this encloses every case.
+    """
+    gate = block.gate
+    assert gate is not None, "the spec layer sets a gate class for relaxation blocks"
+    s = block.conditions.supply
+    r = _band(gate.rising, block.window("rising"), s)
+    f = _band(gate.falling, block.window("falling"), s)
+    return Thresholds(r[0], r[1], r[2], f[0], f[1], f[2], gate.hysteresis_min)
+
+
+def _centre_range(th: Thresholds, w: FloatArray) -> tuple[FloatArray, FloatArray]:
+    """Range ``[a(w), b(w)]`` of the threshold centre at hysteresis ``w``."""
+    a = np.maximum(th.fall_low, th.rise_low - w) + 0.5 * w
+    b = np.minimum(th.fall_high, th.rise_high - w) + 0.5 * w
+    return a, np.maximum(a, b)
+
+
+def _centre(th: Thresholds, w: FloatArray, gamma: FloatArray, e: FloatArray) -> FloatArray:
+    """Threshold centre (without the leakage shift) at position ``gamma``."""
+    a, b = _centre_range(th, w)
+    c0 = np.clip(0.5 - e, a, b)
+    return np.where(gamma < 0.0, c0 + gamma * (c0 - a), c0 + gamma * (b - c0))
+
+
+def _gamma_of(th: Thresholds, w: float, c: float) -> float:
+    """Position of centre ``c`` at hysteresis ``w`` with no leakage (inverse of _centre)."""
+    a_arr, b_arr = _centre_range(th, np.array([w]))
+    a, b = float(a_arr[0]), float(b_arr[0])
+    c = min(max(c, a), b)
+    c0 = min(max(0.5, a), b)
+    if c < c0:
+        return (c - c0) / (c0 - a)
+    if c > c0:
+        return (c - c0) / (b - c0)
+    return 0.0
+
+
+#: Knots of the hysteresis position sit on multiples of this step, which are
+#: nodes of the worst-case grid (9 evenly spaced values, ends included).
+_KNOT_STEP = 1.0 / 8.0
+
+
+def width_knots(th: Thresholds) -> tuple[FloatArray, FloatArray]:
+    """Knots of the map from the hysteresis position ``u ∈ [0, 1]`` to ``w``.
+
+    Parameters
+    ----------
+    th
+        Threshold bands.
+
+    Returns
+    -------
+    tuple of FloatArray
+        ``(u, w)`` knots, both increasing; ``w`` is linear in ``u`` between them.
+
+    Notes
+    -----
+    The inner knots are the widths where the threshold-centre range changes
+    slope, ``VT+min − VT−min`` and ``VT+max − VT−max`` (there the duty cycle
+    reaches its extremes, at the band corners), each placed at the multiple of
+    1/8 nearest its proportional position so that the worst-case grid visits
+    it exactly.
+    """
+    lo, hi = th.width_low, th.width_high
+    if hi <= lo:
+        return np.array([0.0, 1.0]), np.array([lo, lo])
+    us, ws = [0.0], [lo]
+    inner = sorted({th.rise_low - th.fall_low, th.rise_high - th.fall_high})
+    for w in inner:
+        if not (lo < w < hi):
+            continue
+        u = round((w - lo) / (hi - lo) / _KNOT_STEP) * _KNOT_STEP
+        u = min(max(u, us[-1] + _KNOT_STEP), 1.0 - _KNOT_STEP)
+        if u <= us[-1] or w <= ws[-1]:
+            continue
+        us.append(u)
+        ws.append(w)
+    us.append(1.0)
+    ws.append(hi)
+    return np.array(us), np.array(ws)
+
+
+def _leak_bounds(block: Block) -> tuple[float, float]:
+    gate = block.gate
+    assert gate is not None
+    return -gate.i_input_max, gate.i_input_max + (block.number("leakage") or 0.0)
+
+
+class Relaxation:
+    """Schmitt-inverter RC oscillator family."""
+
+    kind = "relaxation"
+
+    def outputs(self, block: Block) -> tuple[Output, ...]:
+        """Outputs: frequency, period, duty cycle, high and low time.
+
+        Parameters
+        ----------
+        block
+            The block.
+
+        Returns
+        -------
+        tuple of Output
+            ``frequency``, ``period``, ``duty``, ``high``, ``low``.
+        """
+        return (
+            Output("frequency", "frequency", "oscillation frequency"),
+            Output("period", "time", "period"),
+            Output("duty", "ratio", "duty cycle (share of the period high)"),
+            Output("high", "time", "output high time"),
+            Output("low", "time", "output low time"),
+        )
+
+    # -- model --------------------------------------------------------------
+    def factors(self, block: Block, design: Design) -> list[Factor]:
+        """Varying inputs of a design.
+
+        Parameters
+        ----------
+        block
+            The block.
+        design
+            Parts ``R`` and ``C``.
+
+        Returns
+        -------
+        list of Factor
+            Parts, ambient and supply, ``gate.hysteresis`` and ``gate.centre``
+            (see the module notes) and ``leak``, the signed input leakage
+            (A, positive drains the node).
+        """
+        gate = block.gate
+        assert gate is not None
+        th = thresholds(block)
+        out: list[Factor] = []
+        for part in design.parts:
+            out.extend(part_factors(block, part))
+        out.extend(condition_factors(block))
+        w_lo, w_hi = th.width_low, th.width_high
+        w_nom = min(max(th.rise_typ - th.fall_typ, w_lo), w_hi)
+        g_nom = _gamma_of(th, w_nom, 0.5 * (th.rise_typ + th.fall_typ))
+        us, ws = width_knots(th)
+        u_nom = float(np.interp(w_nom, ws, us)) if w_hi > w_lo else 0.0
+        out.append(
+            Factor(
+                "gate.hysteresis",
+                f"{gate.name} gate hysteresis VT+ − VT− (0…1 across {w_lo:.3g}…{w_hi:.3g} "
+                "of supply)",
+                u_nom,
+                0.0,
+                1.0,
+                monotone=False,
+                group=GATE_GROUP,
+            )
+        )
+        out.append(
+            Factor(
+                "gate.centre",
+                f"{gate.name} gate threshold position (−1…1 across VT+ {th.rise_low:.3g}…"
+                f"{th.rise_high:.3g}, VT− {th.fall_low:.3g}…{th.fall_high:.3g} of supply)",
+                g_nom,
+                -1.0,
+                1.0,
+                monotone=False,
+                group=GATE_GROUP,
+            )
+        )
+        i_lo, i_hi = _leak_bounds(block)
+        out.append(
+            Factor(
+                "leak",
+                f"input and node leakage ({i_lo:.3g}…{i_hi:.3g} A)",
+                0.0,
+                i_lo,
+                i_hi,
+                monotone=False,
+                group="leakage",
+            )
+        )
+        return out
+
+    def evaluate(self, block: Block, variant: str) -> Evaluate:
+        """The vectorised model.
+
+        Parameters
+        ----------
+        block
+            The block.
+        variant
+            Unused (one circuit).
+
+        Returns
+        -------
+        Evaluate
+            Samples → frequency (Hz, 0 when it does not oscillate), period,
+            high and low time (s, ``inf`` when it does not oscillate) and duty
+            (``inf`` when it does not oscillate).
+
+        Notes
+        -----
+        ``VT± = (c ± w/2)·V``; the physics adds the drain ``i`` to both phases
+        (``tH = R·C·ln((V − i·R − VT−)/(V − i·R − VT+))``,
+        ``tL = R·C·ln((VT+ + i·R)/(VT− + i·R))``).
+
+        References
+        ----------
+        First-order RC charge and discharge laws, any circuit-theory handbook;
+        the Schmitt-inverter oscillator relation as in the module notes.
+        """
+        th = thresholds(block)
+        us, ws = width_knots(th)
+
+        def evaluate(x: Inputs) -> dict[str, FloatArray]:
+            r = apply_part(x, "R")
+            c = apply_part(x, "C")
+            v = x["supply"]
+            i = x["leak"]
+            w = np.interp(x["gate.hysteresis"], us, ws)
+            e = i * r / v
+            centre = _centre(th, w, x["gate.centre"], e)
+            vt_plus = (centre + 0.5 * w) * v
+            vt_minus = (centre - 0.5 * w) * v
+            t_h = relaxation.high_time(r, c, v, vt_plus, vt_minus, i)
+            t_l = relaxation.low_time(r, c, 0.0, vt_plus, vt_minus, i)
+            period = t_h + t_l
+            ok = np.isfinite(period)
+            with np.errstate(divide="ignore", invalid="ignore"):
+                freq = np.where(ok, 1.0 / np.where(ok, period, 1.0), 0.0)
+                duty = np.where(ok, t_h / np.where(ok, period, 1.0), np.inf)
+            return {
+                "frequency": np.asarray(freq, dtype=np.float64),
+                "period": np.asarray(period, dtype=np.float64),
+                "duty": np.asarray(duty, dtype=np.float64),
+                "high": np.asarray(t_h, dtype=np.float64),
+                "low": np.asarray(t_l, dtype=np.float64),
+            }
+
+        return evaluate
+
+    # -- solver -------------------------------------------------------------
+    def candidates(self, block: Block) -> list[Design]:
+        """Candidate (R, C) pairs: for each capacitor, the continuous R, snapped.
+
+        Parameters
+        ----------
+        block
+            The block.
+
+        Returns
+        -------
+        list of Design
+            Candidates; pinned parts are kept as given.
+
+        Notes
+        -----
+        As for the delay family (:func:`timespec.families.delay.rc_candidates`):
+        the nominal period is aimed so that the worst-case window is centred on
+        the requirement, R is solved per capacitor from ``T = R·C·K`` and
+        snapped; R stays inside the gate class's usable range where the
+        resistor policy allows.
+        """
+        gate = block.gate
+        assert gate is not None
+        return rc_candidates(self, block, "period", r_limits=(gate.r_min, gate.r_max))
+
+    # -- rules --------------------------------------------------------------
+    def findings(
+        self, block: Block, design: Design, extremes: Mapping[str, tuple[float, float]]
+    ) -> list[Finding]:
+        """Design rules of a Schmitt-inverter oscillator.
+
+        Parameters
+        ----------
+        block
+            The block.
+        design
+            The design.
+        extremes
+            Worst-case ``(low, high)`` of each output.
+
+        Returns
+        -------
+        list of Finding
+            Inconsistent threshold bands, no oscillation, frequency above the
+            class's limit (errors); R outside the class's usable range, leakage
+            shifting the thresholds (warnings); the share of the spread due to
+            the thresholds, gate delay near the limit, the longer first cycle
+            (notes); dielectric.
+        """
+        gate = block.gate
+        assert gate is not None
+        th = thresholds(block)
+        out: list[Finding] = []
+        r, c = design.part("R"), design.part("C")
+        s = block.conditions.supply
+        f_lo, f_hi = extremes["frequency"]
+        t_lo, t_hi = extremes["period"]
+        if not th.consistent:
+            out.append(
+                Finding(
+                    "error",
+                    "thresholds-overlap",
+                    f"the rising band tops out at {th.rise_high:.3g} of the supply and the falling "
+                    f"band starts at {th.fall_low:.3g}: less than the {gate.name} class's minimum "
+                    f"hysteresis {th.hysteresis_min:.3g}. Check the 'rising' and 'falling' bands.",
+                )
+            )
+        if not (math.isfinite(t_hi) and f_lo > 0):
+            out.append(
+                Finding(
+                    "error",
+                    "no-oscillation",
+                    "at some corner the input never reaches a threshold (leakage through R "
+                    "shifts the node past it): the circuit can stop. Use a smaller R with a "
+                    "larger C.",
+                )
+            )
+        if f_hi > gate.f_max:
+            out.append(
+                Finding(
+                    "error",
+                    "frequency-above-gate-limit",
+                    f"the frequency can reach {f_hi:.4g} Hz, above the {gate.name} class's "
+                    f"{gate.f_max:.3g} Hz for an RC oscillator. Use a faster gate class or a "
+                    "crystal or timer circuit.",
+                )
+            )
+        elif f_hi > 0.1 * gate.f_max:
+            out.append(
+                Finding(
+                    "note",
+                    "gate-delay-not-modelled",
+                    f"at up to {f_hi:.4g} Hz the gate's own propagation delay (not modelled) "
+                    "lengthens each half-period noticeably; measure on the board.",
+                )
+            )
+        rv = format_rkm(r.value, "resistance")
+        if r.value < gate.r_min:
+            out.append(
+                Finding(
+                    "warning",
+                    "resistor-below-gate-range",
+                    f"R = {rv}Ω is below {format_rkm(gate.r_min, 'resistance')}Ω: the gate output "
+                    "then carries enough current to sag below the rails, which the model (rail "
+                    "to rail) does not include. Use a larger R with a smaller C.",
+                )
+            )
+        if r.value > gate.r_max:
+            out.append(
+                Finding(
+                    "error",
+                    "resistor-above-gate-range",
+                    f"R = {rv}Ω is above {format_rkm(gate.r_max, 'resistance')}Ω, beyond the "
+                    f"usable range of a {gate.name} input: leakage that grows when hot, pickup "
+                    "and the input capacitance govern the timing. Use a smaller R with a larger C.",
+                )
+            )
+        i_lo, i_hi = _leak_bounds(block)
+        shift = max(abs(i_lo), abs(i_hi)) * r.value * (1 + r.tolerance)
+        if shift > 0.5 * th.hysteresis_min * s.low:
+            out.append(
+                Finding(
+                    "warning",
+                    "leakage-shifts-thresholds",
+                    f"input and node leakage (up to {max(abs(i_lo), abs(i_hi)):.3g} A) through "
+                    f"R = {rv}Ω shifts the node by up to {shift:.3g} V, more than half of "
+                    f"the minimum hysteresis ({th.hysteresis_min * s.low:.3g} V at {s.low:g} V); "
+                    "the worst case includes it, but a smaller R with a larger C is steadier.",
+                )
+            )
+        out.extend(self._threshold_share(block, design, t_lo, t_hi))
+        first = float(relaxation.high_time(r.value, c.value, 1.0, th.rise_typ, 1e-300))
+        out.append(
+            Finding(
+                "note",
+                "first-cycle-longer",
+                f"after power-up the capacitor starts at 0 V, so the first high time is about "
+                f"{seconds(first)} (typical thresholds) instead of the steady one; allow for it "
+                "if the first edges are counted.",
+            )
+        )
+        out.extend(dielectric_findings(block, c))
+        return out
+
+    def _threshold_share(
+        self, block: Block, design: Design, t_lo: float, t_hi: float
+    ) -> list[Finding]:
+        """Share of the period spread due to the gate thresholds, as a note."""
+        factors = self.factors(block, design)
+        model = self.evaluate(block, design.variant)
+        spread = rss(factors, model)["period"]
+        shares = dict(grouped_shares(spread))
+        share = shares.get(GATE_GROUP, 0.0)
+        only = [
+            f
+            if f.group == GATE_GROUP
+            else Factor(f.name, f.label, f.nominal, f.nominal, f.nominal, "fixed", group=f.group)
+            for f in factors
+        ]
+        alone = worst_case(only, model)["period"]
+        if not (math.isfinite(share) and math.isfinite(alone.high) and alone.nominal > 0):
+            return []
+        down = (alone.low / alone.nominal - 1) * 100
+        up = (alone.high / alone.nominal - 1) * 100
+        return [
+            Finding(
+                "note",
+                "thresholds-dominate" if share >= 0.5 else "threshold-share",
+                f"the gate thresholds cause {share * 100:.0f} % of the period's spread (RSS); "
+                f"alone they move the period {down:+.0f} %…{up:+.0f} % about its nominal "
+                f"{seconds(alone.nominal)} (worst case with everything: {seconds(t_lo)}…"
+                f"{seconds(t_hi)}). When the window is tighter, trim R on each board or use "
+                "a 555-type timer, whose thresholds come from a resistor divider.",
+            )
+        ]
