@@ -30,5 +30,4 @@ autodoc_typehints = "signature"
 nitpicky = False
 
 exclude_patterns = ["_build"]
-html_static_path = ["_static"]
 html_title = "timespec"

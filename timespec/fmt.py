@@ -8,11 +8,13 @@ from __future__ import annotations
 
 import math
 from collections.abc import Iterable
-from typing import Literal
+from typing import TYPE_CHECKING, Literal
 
-from timespec.families.base import Part
-from timespec.model import Window
 from timespec.rkm import format_rkm
+
+if TYPE_CHECKING:  # pragma: no cover
+    from timespec.families.base import Part
+    from timespec.model import Window
 
 __all__ = [
     "PPM_OUTPUTS",
@@ -114,6 +116,8 @@ def _number(value: float, kind: str | None, exp: int, ratio: str, digits: int) -
     if math.isinf(value):
         return "∞" if value > 0 else f"{_MINUS}∞"
     if kind == "ratio":
+        if abs(value) < 5e-13:  # rounding noise of a zero-centred budget, below 1e-6 ppm
+            value = 0.0
         return _trim(value * (1e6 if ratio == "ppm" else 100.0), digits)
     if kind == "tempco":
         return _trim(value * 1e6, digits)
@@ -124,6 +128,8 @@ def _number(value: float, kind: str | None, exp: int, ratio: str, digits: int) -
 
 def _unit(kind: str | None, exp: int, ratio: str) -> str:
     """Unit text (with its leading space) for a kind at an engineering exponent."""
+    if kind == "factor":
+        return "×"
     if kind == "ratio":
         return " " + ratio
     if kind == "tempco":

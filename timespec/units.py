@@ -43,6 +43,8 @@ KINDS: dict[str, tuple[str, str]] = {
     "temperature": ("degC", "degC"),
     "tempco": ("1/K", "1/kelvin"),
     "ratio": ("1", "dimensionless"),
+    # A plain multiple such as a gain margin (never matched when reading units: "ratio" wins).
+    "factor": ("1", "dimensionless"),
 }
 
 _NORMALISE = (

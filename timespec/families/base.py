@@ -26,6 +26,7 @@ import numpy.typing as npt
 
 from timespec import dielectrics, series
 from timespec.analysis import Factor
+from timespec.fmt import format_quantity
 from timespec.model import Block, CapacitorPolicy, PinnedPart, ResistorPolicy, Window
 
 __all__ = [
@@ -712,7 +713,7 @@ def timer_factors(block: Block, *, leakage: float = 0.0) -> list[Factor]:
         ),
         Factor(
             "timer.ith",
-            f"{t.name} threshold input current (0…{t.i_threshold_max:.3g} A)",
+            f"{t.name} threshold input current (0…{format_quantity(t.i_threshold_max, 'current')})",
             0.4 * t.i_threshold_max,
             0.0,
             t.i_threshold_max,
@@ -721,7 +722,14 @@ def timer_factors(block: Block, *, leakage: float = 0.0) -> list[Factor]:
     ]
     if leakage > 0:
         out.append(
-            Factor("leak", f"node leakage (0…{leakage:.3g} A)", 0.0, 0.0, leakage, group="leakage")
+            Factor(
+                "leak",
+                f"node leakage (0…{format_quantity(leakage, 'current')})",
+                0.0,
+                0.0,
+                leakage,
+                group="leakage",
+            )
         )
     return out
 
@@ -804,7 +812,7 @@ def dielectric_findings(block: Block, part: Part) -> list[Finding]:
             Finding(
                 "warning",
                 "imprecise-dielectric",
-                f"{part.ref} is {d.name}: {d.notes} Prefer C0G or film for timing.",
+                f"{part.ref} is {d.name}: {d.notes.rstrip('.')}. Prefer C0G or film for timing.",
             )
         )
     if not (d.min_farads <= part.value <= d.max_farads):

@@ -308,7 +308,7 @@ class Crystal:
             and ``drive`` (W).
         """
         gain = (
-            Output("gain_margin", "ratio", "gain margin gm/gm_crit")
+            Output("gain_margin", "factor", "gain margin gm/gm_crit")
             if block.number("gm") is not None
             else Output("gm_needed", "transconductance", f"gm for a margin of {MIN_GAIN_MARGIN:g}")
         )

@@ -47,6 +47,7 @@ from timespec.families.base import (
     resistor_part,
     snap,
 )
+from timespec.fmt import format_quantity
 from timespec.model import Block, Window
 from timespec.physics import rcdelay
 from timespec.rkm import format_rkm
@@ -179,7 +180,14 @@ class Delay:
         leak = block.number("leakage") or 0.0
         if leak > 0:
             out.append(
-                Factor("leak", f"node leakage (0…{leak:.3g} A)", 0.0, 0.0, leak, group="leakage")
+                Factor(
+                    "leak",
+                    f"node leakage (0…{format_quantity(leak, 'current')})",
+                    0.0,
+                    0.0,
+                    leak,
+                    group="leakage",
+                )
             )
         return out
 
@@ -287,7 +295,8 @@ class Delay:
                 Finding(
                     "error",
                     "threshold-never-reached",
-                    f"at {s.low:g} V with {leak:.3g} A drawn from the node the capacitor settles "
+                    f"at {s.low:g} V with {format_quantity(leak, 'current')} "
+                    "drawn from the node the capacitor settles "
                     f"near {settle:.3g} V, not above the highest threshold {vth_hi:.3g} V: the "
                     "input may never switch. Lower the threshold, raise the supply or use a "
                     "smaller R with a larger C.",
@@ -298,7 +307,8 @@ class Delay:
                 Finding(
                     "warning",
                     "leakage-shifts-delay",
-                    f"leakage ({leak:.3g} A) through R = {format_rkm(r.value, 'resistance')}Ω "
+                    f"leakage ({format_quantity(leak, 'current')}) "
+                    f"through R = {format_rkm(r.value, 'resistance')}Ω "
                     f"drops {leak * r_max:.3g} V, more than 1 % of the {s.low - vth_hi:.3g} V "
                     "left above the threshold; a smaller R with a larger C is more robust.",
                 )

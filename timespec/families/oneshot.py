@@ -39,6 +39,7 @@ from timespec.families.base import (
     target,
     timer_factors,
 )
+from timespec.fmt import format_quantity
 from timespec.model import Block
 from timespec.physics import monostable
 from timespec.rkm import format_rkm
@@ -292,7 +293,8 @@ class OneShot:
                 Finding(
                     "error",
                     "drain-stalls-charge",
-                    f"with {drain:.3g} A drawn from the timing node the capacitor never "
+                    f"with {format_quantity(drain, 'current')} "
+                    "drawn from the timing node the capacitor never "
                     f"reaches the threshold through R = {format_rkm(r.value, 'resistance')}Ω "
                     f"at {v:g} V.",
                 )
@@ -302,7 +304,8 @@ class OneShot:
                 Finding(
                     "warning",
                     "drain-shifts-timing",
-                    f"threshold current and leakage ({drain:.3g} A) through R = "
+                    "threshold current and leakage "
+                    f"({format_quantity(drain, 'current')}) through R = "
                     f"{format_rkm(r.value, 'resistance')}Ω shift the width by more than 1 %; "
                     "a smaller R with a larger C is more robust.",
                 )

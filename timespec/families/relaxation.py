@@ -75,6 +75,7 @@ from timespec.families.base import (
     part_factors,
 )
 from timespec.families.delay import rc_candidates, seconds
+from timespec.fmt import format_quantity
 from timespec.model import Block, Window
 from timespec.physics import relaxation
 from timespec.rkm import format_rkm
@@ -327,7 +328,7 @@ class Relaxation:
         out.append(
             Factor(
                 "leak",
-                f"input and node leakage ({i_lo:.3g}…{i_hi:.3g} A)",
+                f"input and node leakage ({i_lo:.3g}…{format_quantity(i_hi, 'current')})",
                 0.0,
                 i_lo,
                 i_hi,
@@ -520,7 +521,9 @@ class Relaxation:
                 Finding(
                     "warning",
                     "leakage-shifts-thresholds",
-                    f"input and node leakage (up to {max(abs(i_lo), abs(i_hi)):.3g} A) through "
+                    "input and node leakage (up to "
+                    f"{format_quantity(max(abs(i_lo), abs(i_hi)), 'current')}) "
+                    "through "
                     f"R = {rv}Ω shifts the node by up to {shift:.3g} V, more than half of "
                     f"the minimum hysteresis ({th.hysteresis_min * s.low:.3g} V at {s.low:g} V); "
                     "the worst case includes it, but a smaller R with a larger C is steadier.",
