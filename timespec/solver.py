@@ -214,40 +214,60 @@ def _shortlist(block: Block, fam: Family, designs: list[Design], keep: int) -> l
     return [designs[i] for i in chosen]
 
 
-def _preselect(block: Block, fam: Family, designs: list[Design], keep: int) -> list[Design]:
+def _preselect(
+    block: Block,
+    fam: Family,
+    designs: list[Design],
+    keep: int,
+    facs_of: dict[Design, list[Factor]],
+    known: dict[Design, dict[str, Extremes]],
+) -> list[Design]:
     """Quick ranking of a shortlist before the exhaustive worst case.
 
     The extreme corners of the first design are evaluated for every design of
-    the same layout (designs of one family share their sensitivity pattern, so
-    the same corners are extreme); the ``keep`` best by the usual ranking then
-    get the full, exhaustive corner search that the report relies on.
+    the same layout in one vectorised call (designs of one family share their
+    sensitivity pattern, so the same corners are extreme); the ``keep`` best by
+    the usual ranking then get the full, exhaustive corner search that the
+    report relies on.  The first design's exhaustive result goes into ``known``.
     """
     if len(designs) <= keep:
         return designs
     first = designs[0]
-    facs = fam.factors(block, first)
+    facs = facs_of[first]
     extremes = worst_case(facs, fam.evaluate(block, first.variant))
+    known[first] = extremes
     corners = [e.low_at for e in extremes.values()] + [e.high_at for e in extremes.values()]
-    quick: list[tuple[RankKey, int]] = []
-    sig = _signature(facs)
-    for i, d in enumerate(designs):
-        dfacs = fam.factors(block, d)
-        if d.variant != first.variant or _signature(dfacs) != sig:
-            quick.append(((0, 0.0, 0, 0.0, 0, 0, 0.0), i))  # different layout: keep it
-            continue
-        x = nominal_inputs(dfacs)
-        n = len(corners) + 1
-        x = {k: np.repeat(v, n) for k, v in x.items()}
-        for j, corner in enumerate(corners, start=1):
-            for name, value in corner.items():
-                x[name][j] = value
-        with np.errstate(all="ignore"):
-            out = fam.evaluate(block, d.variant)(x)
+    sig = (first.variant, _signature(facs))
+    same = [d for d in designs if (d.variant, _signature(facs_of[d])) == sig]
+    quick: list[tuple[RankKey, int]] = [
+        ((0, 0.0, 0, 0.0, 0, 0, 0.0), i)  # a different layout: always kept
+        for i, d in enumerate(designs)
+        if (d.variant, _signature(facs_of[d])) != sig
+    ]
+    n = len(corners) + 1
+    x = {k: np.repeat(v, n * len(same)) for k, v in nominal_inputs(facs).items()}
+    for j, corner in enumerate(corners, start=1):
+        for name, value in corner.items():
+            x[name][j::n] = value
+    for name in (f.name for f in facs if f.name.endswith(".value")):
+        values = [next(f.nominal for f in facs_of[d] if f.name == name) for d in same]
+        x[name] = np.repeat(np.asarray(values, dtype=np.float64), n)
+    with np.errstate(all="ignore"):
+        out = fam.evaluate(block, first.variant)(x)
+    index = {id(d): i for i, d in enumerate(designs)}
+    for k, d in enumerate(same):
         approx = {
-            k: Extremes(float(v[0]), float(np.min(v)), float(np.max(v)), {}, {})
-            for k, v in out.items()
+            name: Extremes(
+                float(v[k * n]),
+                float(np.min(v[k * n : (k + 1) * n])),
+                float(np.max(v[k * n : (k + 1) * n])),
+                {},
+                {},
+            )
+            for name, v in out.items()
         }
-        quick.append((rank_key(_candidate(block, d, fam, dfacs, approx, rules=False)), i))
+        cand = _candidate(block, d, fam, facs_of[d], approx, rules=False)
+        quick.append((rank_key(cand), index[id(d)]))
     quick.sort()
     return [designs[i] for _, i in quick[:keep]]
 
@@ -260,13 +280,25 @@ def _signature(factors: list[Factor]) -> tuple[object, ...]:
     )
 
 
-def _analyse_many(block: Block, fam: Family, designs: list[Design]) -> list[Candidate]:
-    """Worst case of many designs, batched per circuit variant and factor layout."""
+def _analyse_many(
+    block: Block,
+    fam: Family,
+    designs: list[Design],
+    facs_of: dict[Design, list[Factor]] | None = None,
+    known: dict[Design, dict[str, Extremes]] | None = None,
+) -> list[Candidate]:
+    """Worst case of many designs, batched per circuit variant and factor layout.
+
+    Designs whose exhaustive worst case is already in ``known`` are not searched again.
+    """
     groups: dict[tuple[object, ...], list[tuple[Design, list[Factor]]]] = defaultdict(list)
-    for d in designs:
-        facs = fam.factors(block, d)
-        groups[(d.variant, _signature(facs))].append((d, facs))
     out: list[Candidate] = []
+    for d in designs:
+        facs = facs_of[d] if facs_of is not None else fam.factors(block, d)
+        if known is not None and d in known:
+            out.append(_candidate(block, d, fam, facs, known[d]))
+            continue
+        groups[(d.variant, _signature(facs))].append((d, facs))
     for (variant, _sig), members in groups.items():
         template = members[0][1]
         refs = [f.name for f in template if f.name.endswith(".value")]
@@ -310,8 +342,10 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
             ),
         )
     chosen = _shortlist(block, fam, designs, shortlist)
-    chosen = _preselect(block, fam, chosen, 1 + ALTERNATIVES)
-    analysed = sorted(_analyse_many(block, fam, chosen), key=rank_key)
+    facs_of = {d: fam.factors(block, d) for d in chosen}
+    known: dict[Design, dict[str, Extremes]] = {}
+    chosen = _preselect(block, fam, chosen, 1 + ALTERNATIVES, facs_of, known)
+    analysed = sorted(_analyse_many(block, fam, chosen, facs_of, known), key=rank_key)
     best = analysed[0]
     alternatives = tuple(
         Candidate(c.design, c.outputs, c.findings, _reason(c, best))

@@ -43,6 +43,7 @@ __all__ = [
     "condition_factors",
     "dielectric_findings",
     "neighbour_parts",
+    "neighbour_parts_many",
     "pair_part",
     "part_factors",
     "resistor_part",
@@ -490,6 +491,40 @@ def neighbour_parts(ref: str, x: float, policy: ResistorPolicy | CapacitorPolicy
     if policy.pairs:
         for a, b, how in _nearest_pairs(policy.series, x, lo, hi):
             out.append(pair_part(ref, a, b, how, policy))
+    return out
+
+
+def neighbour_parts_many(
+    ref: str, xs: FloatArray, policy: ResistorPolicy | CapacitorPolicy
+) -> list[list[Part]]:
+    """:func:`neighbour_parts` for many continuous values at once.
+
+    Parameters
+    ----------
+    ref
+        Reference for the parts.
+    xs
+        Continuous values, Ω or F.
+    policy
+        The resistor or capacitor policy.
+
+    Returns
+    -------
+    list of list of Part
+        For each value, the same parts :func:`neighbour_parts` gives; the
+        single standard neighbours are found in one vectorised call.
+    """
+    xs = np.asarray(xs, dtype=np.float64)
+    below, above = snap(policy.series, xs, policy.low, policy.high)
+    make = resistor_part if isinstance(policy, ResistorPolicy) else capacitor_part
+    out: list[list[Part]] = []
+    for x, b, a in zip(xs, below, above, strict=True):
+        values = sorted({float(v) for v in (b, a) if np.isfinite(v)})
+        parts = [make(ref, v, policy) for v in values]  # type: ignore[arg-type]
+        if policy.pairs and math.isfinite(x) and x > 0:
+            for pa, pb, how in _nearest_pairs(policy.series, float(x), policy.low, policy.high):
+                parts.append(pair_part(ref, pa, pb, how, policy))
+        out.append(parts)
     return out
 
 

@@ -32,6 +32,7 @@ from timespec.families.base import (
     dielectric_findings,
     drain_current,
     neighbour_parts,
+    neighbour_parts_many,
     part_factors,
     resistor_part,
     scaled_time,
@@ -210,10 +211,9 @@ class OneShot:
             return []
         r0 = goal / (cs * np.log(3.0))
         r = _refine(lambda rr: width_for(rr, cs), goal, r0)
-        for cval, rv in zip(cs, r, strict=True):
+        for cval, rparts in zip(cs, neighbour_parts_many("R", r, rp), strict=True):
             cpart = capacitor_part("C", float(cval), cp)
-            for rpart in neighbour_parts("R", float(rv), rp):
-                designs.append(Design((rpart, cpart)))
+            designs.extend(Design((rpart, cpart)) for rpart in rparts)
         return designs
 
     # -- rules --------------------------------------------------------------
