@@ -369,3 +369,20 @@ def test_parsed_window_matches_written_numbers(width: float, tol: int, supply: f
     assert w is not None
     assert w.window.low == pytest.approx(width * (1 - tol / 100), rel=1e-12)
     assert w.window.high == pytest.approx(width * (1 + tol / 100), rel=1e-12)
+
+
+def test_missing_comma_between_pinned_parts_is_explained() -> None:
+    # Regression: "use R 4k7 C 10u" used to say "unknown word 'C' in a resistor policy".
+    text = "oneshot a:\n  width 150 ms ±8%\n  supply 12 V\n  use R 4k7 C 10u\n"
+    assert error_text(text) == (
+        "t.tspec:4:13: error: 'C' looks like the next part, but no comma stands before it\n"
+        "      use R 4k7 C 10u\n"
+        "                ^\n"
+        "  hint: separate pinned parts with commas, e.g. use R 4k7, C 10u"
+    )
+
+
+def test_spread_normal_sigma_words() -> None:
+    # Regression: "sigma" used to be read as a unit (pint knows a constant of that name).
+    b = one(BASE + "oneshot a: width 1 ms ±10%; spread normal 3 sigma").blocks[0]
+    assert (b.statistics.distribution, b.statistics.sigmas) == ("normal", 3.0)

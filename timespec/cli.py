@@ -22,7 +22,7 @@ import argparse
 import os
 import sys
 import tempfile
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import TextIO
 
@@ -68,11 +68,11 @@ def _build_parser() -> argparse.ArgumentParser:
     p_solve.add_argument("--json", action="store_true", help="print the JSON document")
     p_solve.add_argument(
         "--samples",
-        type=_positive_int,
+        type=_whole(1),
         metavar="N",
         help="Monte Carlo samples (default: the spec's, else 20000)",
     )
-    p_solve.add_argument("--seed", type=_seed, metavar="N", help="Monte Carlo seed")
+    p_solve.add_argument("--seed", type=_whole(0), metavar="N", help="Monte Carlo seed")
     p_solve.add_argument(
         "--no-statistics", action="store_true", help="worst case only: skip RSS and Monte Carlo"
     )
@@ -93,24 +93,19 @@ def _build_parser() -> argparse.ArgumentParser:
     return parser
 
 
-def _positive_int(text: str) -> int:
-    try:
-        value = int(text)
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number") from None
-    if value < 1:
-        raise argparse.ArgumentTypeError("must be at least 1")
-    return value
+def _whole(minimum: int) -> Callable[[str], int]:
+    """An argparse type: a whole number of at least ``minimum``."""
 
+    def parse(text: str) -> int:
+        try:
+            value = int(text)
+        except ValueError:
+            raise argparse.ArgumentTypeError(f"{text!r} is not a whole number") from None
+        if value < minimum:
+            raise argparse.ArgumentTypeError(f"must be at least {minimum}")
+        return value
 
-def _seed(text: str) -> int:
-    try:
-        value = int(text)
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number") from None
-    if value < 0:
-        raise argparse.ArgumentTypeError("must not be negative")
-    return value
+    return parse
 
 
 def write_atomic(path: str | Path, text: str) -> None:

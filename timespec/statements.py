@@ -10,6 +10,7 @@ raising a positioned :class:`~timespec.errors.SpecError` when they are wrong.
 from __future__ import annotations
 
 import math
+import re
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from typing import Any
@@ -366,6 +367,17 @@ def _policy_items(stmt: Statement, part: str, terms: Sequence[Term]) -> dict[str
                 put("series", name, term.pos)
             elif term.text.lower() == "pairs":
                 put("pairs", True, term.pos)
+            elif (
+                stmt.keyword == "use"
+                and re.fullmatch(r"[RC][A-Z0-9]*", term.text)
+                and (is_res or term.text not in dielectrics.known_names())
+            ):
+                raise error_at(
+                    SpecValueError,
+                    f"{term.text!r} looks like the next part, but no comma stands before it",
+                    term.pos,
+                    "separate pinned parts with commas, e.g. use R 4k7, C 10u",
+                )
             elif not is_res:
                 try:
                     dielectric = dielectrics.dielectric(term.text)

@@ -16,6 +16,7 @@ own physics.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
@@ -395,27 +396,12 @@ def pair_part(
     lo, hi = sorted((float(a), float(b)))
     value = lo + hi if how == "series" else lo * hi / (lo + hi)
     tol = series.pair_tolerance(lo, hi, how, policy.tolerance, policy.tolerance)
-    if isinstance(policy, ResistorPolicy):
-        return Part(
-            ref=ref,
-            kind="resistance",
-            value=value,
-            tolerance=tol,
-            series=policy.series,
-            tempco_ppm=policy.tempco_ppm,
-            ageing=policy.ageing,
-            pair=(lo, hi, how),
-        )
-    return Part(
-        ref=ref,
-        kind="capacitance",
-        value=value,
-        tolerance=tol,
-        series=policy.series,
-        dielectric=policy.dielectric,
-        ageing=policy.ageing,
-        pair=(lo, hi, how),
+    single = (
+        resistor_part(ref, value, policy)
+        if isinstance(policy, ResistorPolicy)
+        else capacitor_part(ref, value, policy)
     )
+    return dataclasses.replace(single, tolerance=tol, pair=(lo, hi, how))
 
 
 def _nearest_pairs(
