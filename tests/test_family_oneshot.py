@@ -238,3 +238,22 @@ def test_control_voltage_sets_the_threshold() -> None:
     x["timer.ith"] = np.array([0.0])
     w = fam.evaluate(blk, "")(x)["width"][0]
     assert w == pytest.approx(619e3 * 220e-9 * math.log(12.0 / 6.0), rel=1e-12)
+
+
+def test_electrolytic_leakage_enters_the_worst_case() -> None:
+    # Aluminium electrolytic datasheets (generic class): leakage up to 0.01·C·V µA or 3 µA,
+    # whichever is greater; timespec adds it to the timing node without being told.
+    from timespec.families.base import capacitor_leakage
+
+    blk = block(SPEC.replace("capacitors E12 2% PP, 10n to 1u", "capacitors E6 20% AL, 1u to 100u"))
+    c = capacitor_part("C", 10e-6, blk.capacitors)
+    # 10 µF, rated 2 × 12.6 V: 0.01 · 10 · 25.2 = 2.52 µA < 3 µA floor; doubled above 60 °C → no.
+    assert capacitor_leakage(blk, c) == pytest.approx(3e-6)
+    big = capacitor_part("C", 100e-6, blk.capacitors)
+    assert capacitor_leakage(blk, big) == pytest.approx(0.01 * 100 * 25.2 * 1e-6)
+    film = capacitor_part("C", 1e-6, block().capacitors)
+    assert capacitor_leakage(block(), film) == 0.0
+    fam = family("oneshot")
+    d = Design((resistor_part("R", 100e3, blk.resistors), big))
+    names = {f.name: f for f in fam.factors(blk, d)}
+    assert names["leak"].high == pytest.approx(0.01 * 100 * 25.2 * 1e-6)

@@ -32,6 +32,7 @@ from timespec.analysis import (
     Extremes,
     Factor,
     corner_label,
+    grid_size,
     nominal_inputs,
     worst_case,
     worst_case_many,
@@ -47,6 +48,9 @@ __all__ = ["SHORTLIST", "evaluate_design", "rank_key", "solve", "solve_block"]
 SHORTLIST = 8
 #: How many alternatives are reported beside the best.
 ALTERNATIVES = 4
+#: Points of exhaustive worst-case search spent on one block's final ranking; a
+#: circuit whose corner grid is large gets fewer runners-up (at least one).
+SEARCH_BUDGET = 2**17
 
 
 def evaluate_design(block: Block, design: Design, fam: Family | None = None) -> Candidate:
@@ -344,7 +348,9 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
     chosen = _shortlist(block, fam, designs, shortlist)
     facs_of = {d: fam.factors(block, d) for d in chosen}
     known: dict[Design, dict[str, Extremes]] = {}
-    chosen = _preselect(block, fam, chosen, 1 + ALTERNATIVES, facs_of, known)
+    per_design = max(grid_size(facs_of[chosen[0]]), 1)
+    finalists = max(2, min(1 + ALTERNATIVES, SEARCH_BUDGET // per_design))
+    chosen = _preselect(block, fam, chosen, finalists, facs_of, known)
     analysed = sorted(_analyse_many(block, fam, chosen, facs_of, known), key=rank_key)
     best = analysed[0]
     alternatives = tuple(

@@ -32,7 +32,13 @@ from timespec.analysis.stats import (
     truncated_normal_std,
     wilson_interval,
 )
-from timespec.analysis.worstcase import Extremes, corner_label, worst_case, worst_case_many
+from timespec.analysis.worstcase import (
+    Extremes,
+    corner_label,
+    grid_size,
+    worst_case,
+    worst_case_many,
+)
 
 __all__ = [
     "PERCENTILES",
@@ -49,6 +55,7 @@ __all__ = [
     "check_factors",
     "corner_label",
     "cpk",
+    "grid_size",
     "grouped_shares",
     "is_varying",
     "monte_carlo",

@@ -25,7 +25,7 @@ from timespec.analysis.factors import (
     nominal_inputs,
 )
 
-__all__ = ["Extremes", "corner_label", "worst_case", "worst_case_many"]
+__all__ = ["Extremes", "corner_label", "grid_size", "worst_case", "worst_case_many"]
 
 _CHUNK = 65_536  # grid points evaluated per call of the model
 
@@ -59,6 +59,24 @@ def _levels(factor: Factor, interior_points: int) -> FloatArray:
     if factor.monotone:
         return np.array([factor.low, factor.high], dtype=np.float64)
     return np.linspace(factor.low, factor.high, interior_points, dtype=np.float64)
+
+
+def grid_size(factors: Sequence[Factor], *, interior_points: int = 9) -> int:
+    """Number of points :func:`worst_case` evaluates for these factors.
+
+    Parameters
+    ----------
+    factors : sequence of Factor
+        The factors.
+    interior_points : int, optional
+        As for :func:`worst_case`.
+
+    Returns
+    -------
+    int
+        ``2**m * interior_points**k`` for ``m`` monotone and ``k`` other varying factors.
+    """
+    return math.prod(len(_levels(f, interior_points)) for f in factors if is_varying(f))
 
 
 class _Tracker:

@@ -55,6 +55,7 @@ from timespec.families.base import (
     condition_factors,
     dielectric_findings,
     drain_current,
+    node_leakage,
     part_factors,
     resistor_part,
     scaled_time,
@@ -484,7 +485,7 @@ class Astable:
             out.extend(part_factors(block, part))
         out.extend(condition_factors(block))
         out.append(supply_nominal_factor(block))
-        timer = timer_factors(block, leakage=block.number("leakage") or 0.0)
+        timer = timer_factors(block, leakage=node_leakage(block, design))
         if design.variant == "feedback":
             timer = [f for f in timer if f.name != "timer.ron"]
             drop = t.output_drop

@@ -45,6 +45,7 @@ __all__ = [
     "dielectric_findings",
     "neighbour_parts",
     "neighbour_parts_many",
+    "node_leakage",
     "pair_part",
     "part_factors",
     "resistor_part",
@@ -808,6 +809,71 @@ def drain_current(x: Inputs) -> FloatArray:
     """
     i = x.get("timer.ith", np.zeros(1)) + x.get("leak", np.zeros(1))
     return np.asarray(i, dtype=np.float64)
+
+
+#: Rated voltage assumed for an electrolytic, as a multiple of the highest supply
+#: (common practice: derate the working voltage to about half the rating).
+ELECTROLYTIC_RATING_FACTOR = 2.0
+
+
+def capacitor_leakage(block: Block, part: Part) -> float:
+    """Leakage bound of a timing capacitor that the designer need not state.
+
+    Parameters
+    ----------
+    block
+        The block (for the supply).
+    part
+        A capacitor.
+
+    Returns
+    -------
+    float
+        A.  For aluminium electrolytics ``max(0.01·C·V_rated, 3 µA)`` with C in µF
+        and V_rated in V giving µA (the usual leakage rating of the datasheet
+        class), doubled for hot operation above 60 °C (leakage rises 2–3× when
+        hot); the rated voltage is taken as :data:`ELECTROLYTIC_RATING_FACTOR`
+        times the highest supply.  Zero for ceramic and film capacitors, whose
+        leakage is negligible at timing resistances (state board leakage with
+        the ``leakage`` statement).
+
+    References
+    ----------
+    Aluminium electrolytic capacitor datasheets (generic device class): leakage
+    current limit 0.01·C·V or 3 µA, whichever is greater, after a few minutes at
+    rated voltage and 20 °C.
+    """
+    if part.dielectric is None:
+        return 0.0
+    d = dielectrics.dielectric(part.dielectric)
+    if d.family != "electrolytic":
+        return 0.0
+    rated = ELECTROLYTIC_RATING_FACTOR * block.conditions.supply.high
+    amps = max(0.01 * (part.value * 1e6) * rated, 3.0) * 1e-6
+    if block.conditions.ambient_high > 60.0:
+        amps *= 2.0
+    return amps
+
+
+def node_leakage(block: Block, design: Design, ref: str = "C") -> float:
+    """The leakage bound at a timing node: the spec's ``leakage`` plus the capacitor's own.
+
+    Parameters
+    ----------
+    block
+        The block.
+    design
+        The design.
+    ref
+        Reference of the timing capacitor.
+
+    Returns
+    -------
+    float
+        A.
+    """
+    stated = block.number("leakage") or 0.0
+    return stated + capacitor_leakage(block, design.part(ref))
 
 
 def dielectric_findings(block: Block, part: Part) -> list[Finding]:

@@ -43,6 +43,7 @@ from timespec.families.base import (
     capacitor_part,
     condition_factors,
     dielectric_findings,
+    node_leakage,
     part_factors,
     resistor_part,
     snap,
@@ -177,7 +178,7 @@ class Delay:
         else:
             label = f"input threshold ({win.low:g}…{win.high:g} V)"
         out.append(Factor("threshold", label, win.centre, win.low, win.high, group="input"))
-        leak = block.number("leakage") or 0.0
+        leak = node_leakage(block, design)
         if leak > 0:
             out.append(
                 Factor(
@@ -286,7 +287,7 @@ class Delay:
         win = _threshold_window(block)
         vth_lo, vth_hi = _threshold_volts(block)
         start = block.number("start") or 0.0
-        leak = block.number("leakage") or 0.0
+        leak = node_leakage(block, design)
         r_max = r.value * (1 + r.tolerance)
         c_max = c.value * (1 + c.tolerance)
         settle = s.low - leak * r_max

@@ -33,6 +33,7 @@ from timespec.families.base import (
     drain_current,
     neighbour_parts,
     neighbour_parts_many,
+    node_leakage,
     part_factors,
     resistor_part,
     scaled_time,
@@ -97,7 +98,7 @@ class OneShot:
             out.extend(part_factors(block, part))
         out.extend(condition_factors(block))
         out.append(supply_nominal_factor(block))
-        out.extend(timer_factors(block, leakage=block.number("leakage") or 0.0))
+        out.extend(timer_factors(block, leakage=node_leakage(block, design)))
         control = block.window("control")
         if control is not None:
             out.append(
@@ -285,7 +286,7 @@ class OneShot:
                     "the discharge transistor and supply carry needless current.",
                 )
             )
-        drain = timer.i_threshold_max + (block.number("leakage") or 0.0)
+        drain = timer.i_threshold_max + node_leakage(block, design)
         v = block.conditions.supply.low
         rmax = float(monostable.max_drain_resistance(v, timer.ratio_band[1], drain))
         if r.value * (1 + r.tolerance) >= rmax:
