@@ -10,6 +10,8 @@ Commands:
     requirement (a pinned part was changed, a tolerance or range widened).
 ``timespec table FILE``
     Part-value table in Markdown, reST or CSV for the docs.
+``timespec format FILE...``
+    Canonical layout of spec files (``--check`` for CI, ``--write`` in place).
 
 Exit codes: 0 every block meets its requirement; 1 a block fails or is
 infeasible; 2 a mistake in the spec or on the command line (message on
@@ -80,6 +82,18 @@ def _build_parser() -> argparse.ArgumentParser:
     p_check = sub.add_parser("check", help="verify every block; exit 1 if any does not meet")
     common(p_check)
     p_check.add_argument("--json", action="store_true", help="print the JSON document")
+
+    p_format = sub.add_parser("format", help="lay spec files out canonically")
+    p_format.add_argument("specs", metavar="FILE", nargs="+", help="the .tspec files")
+    mode = p_format.add_mutually_exclusive_group()
+    mode.add_argument(
+        "--check",
+        action="store_true",
+        help="change nothing; exit 1 if any file is not in canonical layout",
+    )
+    mode.add_argument(
+        "--write", action="store_true", help="rewrite the files in place (atomically)"
+    )
 
     p_table = sub.add_parser("table", help="part-value table for documentation")
     common(p_table)
@@ -153,9 +167,31 @@ def _progress(stream: TextIO) -> object | None:
     return terminal_progress(stream)
 
 
+def _format(args: argparse.Namespace, stdout: TextIO) -> int:
+    from timespec.layout import layout_file
+
+    done = [(path, *layout_file(path)) for path in args.specs]  # read all before writing any
+    changed = [path for path, before, after in done if before != after]
+    if args.check:
+        for path in changed:
+            stdout.write(f"would lay out {path}\n")
+        return EXIT_FAILED if changed else EXIT_OK
+    if args.write:
+        for path, before, after in done:
+            if before != after:
+                write_atomic(path, after)
+                stdout.write(f"laid out {path}\n")
+        return EXIT_OK
+    for _path, _before, after in done:
+        stdout.write(after)
+    return EXIT_OK
+
+
 def _run(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     from timespec import api
 
+    if args.command == "format":
+        return _format(args, stdout)
     spec = api.load(args.spec)
     if args.command == "solve":
         progress = None if args.no_statistics else _progress(stderr)

@@ -245,7 +245,10 @@ class _Builder(Transformer[Token, Any]):
     # -- quantities ----------------------------------------------------------
     def _quantity(self, number: Token, unit: Token | None, sign: float, start: Token) -> Quantity:
         magnitude = sign * float(number)
-        text = ("-" if sign < 0 else "") + str(number) + (f" {unit}" if unit is not None else "")
+        gap = "" if unit is not None and str(unit) == "%" else " "
+        text = (
+            ("-" if sign < 0 else "") + str(number) + (f"{gap}{unit}" if unit is not None else "")
+        )
         if unit is None:
             return Quantity(magnitude, None, text, self._tpos(start))
         if str(unit) in _RKM_LETTERS and not (str(unit) == "K" and not _adjacent(number, unit)):
