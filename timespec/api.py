@@ -130,6 +130,14 @@ def _with_fixes(result: Result) -> Result:
     for b in result.blocks:
         if b.verdict == "infeasible":
             found = suggest_fixes(b.block)
-            b = dataclasses.replace(b, extra={**b.extra, "fixes": tuple(found)})
+            notes = b.notes
+            if not found:
+                notes = (
+                    *notes,
+                    "no change searched (finer series, pairs, tighter resistors or capacitors, "
+                    "a steadier dielectric, a trimmer, a narrower ambient range) makes it "
+                    "feasible: the requirement asks for less spread than the circuit class gives",
+                )
+            b = dataclasses.replace(b, notes=notes, extra={**b.extra, "fixes": tuple(found)})
         blocks.append(b)
     return dataclasses.replace(result, blocks=tuple(blocks))

@@ -685,6 +685,33 @@ def _trim_fix(block: Block, res: BlockResult) -> Fix | None:
     )
 
 
+def _trim_with_change(block: Block, changes: Sequence[_Change]) -> Fix | None:
+    """A trimmer together with one part change, when a trimmer alone is not enough.
+
+    Trimming removes the initial tolerances but not what moves after the trim
+    (temperature, supply, ageing); a steadier dielectric or tighter parts can
+    bring that remainder inside the window.  The cheapest single change that
+    does is reported with the trimmer.
+    """
+    for change in sorted(changes, key=lambda c: c.cost):
+        if change.kind == "values":
+            continue
+        modified = _apply(block, (change,))
+        try:
+            res = solve_block(modified)
+        except ValueError:  # pragma: no cover - a change that the model rejects
+            continue
+        fix = _trim_fix(modified, res)
+        if fix is not None:
+            return dataclasses.replace(
+                fix,
+                what=f"{change.text[0].upper()}{change.text[1:]}, and: {fix.what}",
+                kind=f"{change.kind}+trimmer",
+                cost=fix.cost + change.cost,
+            )
+    return None
+
+
 # --------------------------------------------------------------------------
 # ambient
 
@@ -794,7 +821,7 @@ def suggest_fixes(block: Block, *, limit: int = 3) -> list[Fix]:
             winners.append(key)
             found.append(_fix_from(modified, combo, res))
             found.sort(key=lambda f: (f.cost, -f.margin))
-    trim = _trim_fix(block, base)
+    trim = _trim_fix(block, base) or _trim_with_change(block, changes)
     if trim is not None:
         found.append(trim)
     found.sort(key=lambda f: (f.cost, -f.margin))
