@@ -28,6 +28,7 @@ __all__ = [
     "Spec",
     "SpecError",
     "__version__",
+    "fixture_limits",
     "load",
     "parse",
     "solve",
@@ -36,6 +37,7 @@ __all__ = [
 if TYPE_CHECKING:  # pragma: no cover
     from timespec.api import load, parse, solve
     from timespec.errors import SpecError
+    from timespec.limits import fixture_limits
     from timespec.model import Spec
     from timespec.result import Result
 
@@ -44,6 +46,7 @@ _LAZY = {
     "parse": "timespec.api",
     "solve": "timespec.api",
     "SpecError": "timespec.errors",
+    "fixture_limits": "timespec.limits",
     "Spec": "timespec.model",
     "Result": "timespec.result",
 }

@@ -10,6 +10,9 @@ Commands:
     requirement (a pinned part was changed, a tolerance or range widened).
 ``timespec table FILE``
     Part-value table in Markdown, reST or CSV for the docs.
+``timespec limits FILE``
+    Fixture acceptance limits (time and capture-clock counts) from the spec's
+    ``fixture:`` section.
 ``timespec format FILE...``
     Canonical layout of spec files (``--check`` for CI, ``--write`` in place).
 
@@ -82,6 +85,17 @@ def _build_parser() -> argparse.ArgumentParser:
     p_check = sub.add_parser("check", help="verify every block; exit 1 if any does not meet")
     common(p_check)
     p_check.add_argument("--json", action="store_true", help="print the JSON document")
+
+    p_limits = sub.add_parser(
+        "limits", help="fixture acceptance limits in time and capture-clock counts"
+    )
+    common(p_limits)
+    p_limits.add_argument("--json", action="store_true", help="print the JSON document")
+    p_limits.add_argument(
+        "--decision",
+        choices=("guarded", "simple", "expected"),
+        help="override the fixture section's decision rule",
+    )
 
     p_format = sub.add_parser("format", help="lay spec files out canonically")
     p_format.add_argument("specs", metavar="FILE", nargs="+", help="the .tspec files")
@@ -221,6 +235,27 @@ def _run(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
             from timespec.report import render_check
 
             _emit(render_check(result), args.output, stdout)
+        return EXIT_OK if result.ok else EXIT_FAILED
+    if args.command == "limits":
+        from timespec.limits import fixture_limits, limits_to_dict, render_limits
+
+        if spec.fixture is None:
+            raise UsageError(
+                f"{args.spec} has no fixture: section; add one, e.g.\n"
+                "    fixture:\n      clock 16 MHz ±50 ppm\n      uncertainty 2 us"
+            )
+        result = api.solve(spec, statistics=False, fixes=False)
+        lims = fixture_limits(result, decision=args.decision)
+        if args.json:
+            import json
+
+            _emit(
+                json.dumps(limits_to_dict(lims), indent=2, allow_nan=False) + "\n",
+                args.output,
+                stdout,
+            )
+        else:
+            _emit(render_limits(lims), args.output, stdout)
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "table":
         from timespec.tables import render_table

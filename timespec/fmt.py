@@ -286,6 +286,7 @@ def format_interval(
     *,
     ratio: Literal["%", "ppm"] = "%",
     sep: str = " … ",
+    digits: int = 4,
 ) -> str:
     """Write a computed interval, ``138.3 ms … 161.6 ms``, or a bound, ``≥ 20 ms``.
 
@@ -299,6 +300,8 @@ def format_interval(
         How ratios are shown.
     sep
         What stands between the ends.
+    digits
+        Significant digits.
 
     Returns
     -------
@@ -307,12 +310,12 @@ def format_interval(
     """
     open_low = math.isinf(low) or (low == 0 and kind not in ("ratio", "temperature"))
     if math.isinf(high) and high > 0 and not open_low:
-        return "≥ " + format_quantity(low, kind, ratio=ratio)
+        return "≥ " + format_quantity(low, kind, ratio=ratio, digits=digits)
     if open_low and not math.isinf(high):
-        return "≤ " + format_quantity(high, kind, ratio=ratio)
-    exp = _scale_for([low, high], 4)
+        return "≤ " + format_quantity(high, kind, ratio=ratio, digits=digits)
+    exp = _scale_for([low, high], digits)
     unit = _unit(kind, exp, ratio)
-    lo, hi = (_number(v, kind, exp, ratio, 4) for v in (low, high))
+    lo, hi = (_number(v, kind, exp, ratio, digits) for v in (low, high))
     return f"{lo}{unit}{sep}{hi}{unit}"
 
 

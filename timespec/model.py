@@ -20,6 +20,7 @@ __all__ = [
     "Block",
     "CapacitorPolicy",
     "Conditions",
+    "Fixture",
     "PinnedPart",
     "Requirement",
     "ResistorPolicy",
@@ -418,6 +419,47 @@ class Block:
         return None
 
 
+#: How a fixture turns the required window into pass/fail limits.
+DECISIONS = ("guarded", "simple", "expected")
+
+
+@dataclass(frozen=True)
+class Fixture:
+    """The test fixture that measures the timing of built units.
+
+    Attributes
+    ----------
+    clock
+        Nominal frequency of the fixture's capture clock, Hz.
+    clock_ppm
+        Bound on the capture clock's frequency error (fraction, 50e-6 for ±50 ppm).
+    uncertainty
+        Bound on every other measurement error (trigger latency, jitter), s.
+    decision
+        ``"guarded"`` — accept only inside the requirement narrowed by the
+        measurement uncertainty (guarded acceptance, ILAC-G8:2019, w = U);
+        ``"simple"`` — accept inside the requirement (w = 0);
+        ``"expected"`` — accept inside the design's worst-case window widened by
+        the uncertainty, so that every unit built as designed passes and
+        assembly faults are caught.
+    """
+
+    clock: float
+    clock_ppm: float = 0.0
+    uncertainty: float = 0.0
+    decision: str = "guarded"
+
+    def __post_init__(self) -> None:
+        if not (self.clock > 0 and math.isfinite(self.clock)):
+            raise ValueError("the fixture clock must be a positive frequency")
+        if not (0 <= self.clock_ppm < 0.1):
+            raise ValueError("the fixture clock tolerance must lie between 0 and 10 %")
+        if self.uncertainty < 0:
+            raise ValueError("the measurement uncertainty is written as a size")
+        if self.decision not in DECISIONS:
+            raise ValueError(f"the decision rule is one of {', '.join(DECISIONS)}")
+
+
 @dataclass(frozen=True)
 class Spec:
     """A parsed spec: its blocks in the order written.
@@ -428,10 +470,13 @@ class Spec:
         The circuits.
     path
         The file it came from, if any.
+    fixture
+        The test fixture, when the spec has a ``fixture:`` section.
     """
 
     blocks: tuple[Block, ...]
     path: str | None = None
+    fixture: Fixture | None = None
 
     def block(self, name: str) -> Block:
         """Return the block with this name.

@@ -21,6 +21,7 @@ from timespec.model import (
     Block,
     CapacitorPolicy,
     Conditions,
+    Fixture,
     PinnedPart,
     Requirement,
     ResistorPolicy,
@@ -137,6 +138,7 @@ def _display_path(path: Path) -> Path:
 
 def _assemble(entries: list[Entry], path: str | None) -> Spec:
     defaults = _Section("defaults", None, Pos(path, 1, 1, ""))
+    fixture = _Section("fixture", None, Pos(path, 1, 1, ""))
     sections: list[_Section] = []
     current: _Section | None = None
     names: dict[str, Pos] = {}
@@ -145,8 +147,8 @@ def _assemble(entries: list[Entry], path: str | None) -> Spec:
             if entry.kind == "include":
                 current = None
                 continue
-            current = _open(entry, defaults, names)
-            if current is not defaults:
+            current = _open(entry, defaults, fixture, names)
+            if current is not defaults and current is not fixture:
                 sections.append(current)
             continue
         if current is None:
@@ -166,19 +168,22 @@ def _assemble(entries: list[Entry], path: str | None) -> Spec:
             hint="add a block, e.g. 'oneshot relay_hold: width 150 ms ±8% at supply 12 V ±5%'",
         )
     blocks = tuple(_finish(sec, defaults) for sec in sections)
-    return Spec(blocks, path)
+    return Spec(blocks, path, _fixture(fixture))
 
 
-def _open(entry: Header, defaults: _Section, names: dict[str, Pos]) -> _Section:
+def _open(entry: Header, defaults: _Section, fixture: _Section, names: dict[str, Pos]) -> _Section:
     kind = entry.kind
-    if kind == "defaults":
+    if kind in ("defaults", "fixture"):
         if entry.name is not None:
             raise error_at(
                 SpecValueError,
-                "'defaults' takes no name",
+                f"'{kind}' takes no name",
                 entry.name_pos,
-                "write 'defaults:' on its own",
+                f"write '{kind}:' on its own",
             )
+        if kind == "fixture":
+            fixture.pos = entry.pos
+            return fixture
         return defaults
     if kind not in BLOCK_KINDS:
         if entry.name is None and kind in KEYWORDS:
@@ -192,8 +197,8 @@ def _open(entry: Header, defaults: _Section, names: dict[str, Pos]) -> _Section:
             SpecValueError,
             f"unknown block kind {kind!r}",
             entry.pos,
-            did_you_mean(kind, [*BLOCK_KINDS, "defaults"])
-            or "blocks are " + ", ".join(BLOCK_KINDS) + " and defaults",
+            did_you_mean(kind, [*BLOCK_KINDS, "defaults", "fixture"])
+            or "blocks are " + ", ".join(BLOCK_KINDS) + ", defaults and fixture",
         )
     if entry.name is None:
         raise error_at(
@@ -217,7 +222,7 @@ def _open(entry: Header, defaults: _Section, names: dict[str, Pos]) -> _Section:
 
 def _add(section: _Section, stmt: Statement) -> None:
     kw = KEYWORDS.get(stmt.keyword)
-    where = "defaults" if section.kind == "defaults" else f"a {section.kind} block"
+    where = section.kind if section.kind in ("defaults", "fixture") else f"a {section.kind} block"
     if kw is None or stmt.keyword == "include":
         allowed = [k.name for k in KEYWORDS.values() if section.kind in k.kinds]
         hint = did_you_mean(stmt.keyword, allowed) or did_you_mean(stmt.keyword, list(KEYWORDS))
@@ -228,7 +233,14 @@ def _add(section: _Section, stmt: Statement) -> None:
             hint or "statements here: " + ", ".join(sorted(allowed)),
         )
     if section.kind not in kw.kinds:
-        homes = sorted(k for k in kw.kinds if k != "defaults")
+        homes = sorted(k for k in kw.kinds if k not in ("defaults", "fixture"))
+        if not homes and "fixture" in kw.kinds:
+            raise error_at(
+                SpecValueError,
+                f"'{stmt.keyword}' belongs in the fixture: section",
+                stmt.pos,
+                "describe the test fixture in a section of its own, e.g. 'fixture:'",
+            )
         raise error_at(
             SpecValueError,
             f"'{stmt.keyword}' does not belong in {where}",
@@ -248,6 +260,28 @@ def _add(section: _Section, stmt: Statement) -> None:
     section.readings[key] = (reading.value, stmt.pos, reading.target)
     if reading.target == "requirement":
         section.requirements.append(reading.value)
+
+
+def _fixture(sec: _Section) -> Fixture | None:
+    if not sec.readings:
+        return None
+    fields: dict[str, Any] = {}
+    for key, (value, _pos, _target) in sec.readings.items():
+        if isinstance(value, Mapping):
+            fields.update(value)
+        else:
+            fields[key] = value
+    if "clock" not in fields:
+        raise error_at(
+            SpecValueError,
+            "the fixture section has no capture clock",
+            sec.pos,
+            "add e.g. 'clock 16 MHz ±50 ppm'",
+        )
+    try:
+        return Fixture(**fields)
+    except ValueError as exc:
+        raise error_at(SpecValueError, str(exc), sec.pos) from None
 
 
 def _get(sec: _Section, defaults: _Section, key: str) -> tuple[Any, Pos] | None:

@@ -59,7 +59,7 @@ __all__ = [
 
 logger = logging.getLogger(__name__)
 
-_KIND_ORDER = ("defaults", *BLOCK_KINDS)
+_KIND_ORDER = ("defaults", *BLOCK_KINDS, "fixture")
 
 
 def _names(text: str | None) -> list[str]:

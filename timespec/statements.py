@@ -782,6 +782,16 @@ def _read_spread(stmt: Statement) -> Reading:
     return Reading("statistics", out)
 
 
+def _read_clock(stmt: Statement) -> Reading:
+    term = _single(stmt, "a clock frequency with its tolerance, e.g. 16 MHz ±50 ppm")
+    win = _window(term, ["frequency"], "clock", exact_ok=True)
+    if not win.low > 0:
+        raise error_at(SpecValueError, "the fixture clock must be above 0 Hz", _pos_of(term))
+    nominal = win.centre
+    spread = max(nominal - win.low, win.high - nominal) / nominal
+    return Reading("setting", {"clock": nominal, "clock_ppm": spread})
+
+
 def _read_include(stmt: Statement) -> Reading:
     term = _single(stmt, 'a quoted file name, e.g. include "common.tspec"')
     if not isinstance(term, Text):
@@ -1056,6 +1066,29 @@ _TABLE: list[Keyword] = [
         "accuracy ±50 ppm",
         "required total frequency error over life",
         _read_ppm(requirement="accuracy"),
+    ),
+    # fixture
+    _kw(
+        "clock",
+        {"fixture"},
+        "clock 16 MHz ±50 ppm",
+        "capture clock of the fixture and its frequency tolerance",
+        _read_clock,
+    ),
+    _kw(
+        "uncertainty",
+        {"fixture"},
+        "uncertainty 2 us",
+        "bound on the other measurement errors of the fixture (latency, jitter)",
+        _read_level(["time"], positive=False),
+    ),
+    _kw(
+        "decision",
+        {"fixture"},
+        "decision guarded",
+        "how limits are set: guarded (requirement narrowed by the uncertainty), simple "
+        "(the requirement), expected (worst case widened by the uncertainty)",
+        _read_choice(["guarded", "simple", "expected"]),
     ),
     _kw("include", set(), 'include "common.tspec"', "read another spec file here", _read_include),
 ]
