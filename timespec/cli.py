@@ -207,6 +207,9 @@ def _run(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     if args.command == "format":
         return _format(args, stdout)
     spec = api.load(args.spec)
+    from timespec.jsonout import result_to_json
+    from timespec.report import render_check, render_report
+
     if args.command == "solve":
         progress = None if args.no_statistics else _progress(stderr)
         result = api.solve(
@@ -216,27 +219,15 @@ def _run(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
             seed=args.seed,
             progress=progress,  # type: ignore[arg-type]
         )
-        if args.json:
-            from timespec.jsonout import result_to_json
-
-            _emit(result_to_json(result), args.output, stdout)
-        else:
-            from timespec.report import render_report
-
-            _emit(render_report(result), args.output, stdout)
+        _emit(result_to_json(result) if args.json else render_report(result), args.output, stdout)
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "check":
         result = api.solve(spec, statistics=False, fixes=False)
-        if args.json:
-            from timespec.jsonout import result_to_json
-
-            _emit(result_to_json(result), args.output, stdout)
-        else:
-            from timespec.report import render_check
-
-            _emit(render_check(result), args.output, stdout)
+        _emit(result_to_json(result) if args.json else render_check(result), args.output, stdout)
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "limits":
+        import json
+
         from timespec.limits import fixture_limits, limits_to_dict, render_limits
 
         if spec.fixture is None:
@@ -246,16 +237,12 @@ def _run(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
             )
         result = api.solve(spec, statistics=False, fixes=False)
         lims = fixture_limits(result, decision=args.decision)
-        if args.json:
-            import json
-
-            _emit(
-                json.dumps(limits_to_dict(lims), indent=2, allow_nan=False) + "\n",
-                args.output,
-                stdout,
-            )
-        else:
-            _emit(render_limits(lims), args.output, stdout)
+        text = (
+            json.dumps(limits_to_dict(lims), indent=2, allow_nan=False) + "\n"
+            if args.json
+            else render_limits(lims)
+        )
+        _emit(text, args.output, stdout)
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "table":
         from timespec.tables import render_table
