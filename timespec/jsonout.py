@@ -27,7 +27,7 @@ Layout (``format_version`` 1)::
           "statistics": {"rss": {...}, "monte_carlo": {...}} | null,
           "contributors": {"width": [{"name", "label", "share", "sensitivity"}]},
           "alternatives": [{"circuit", "parts", "outputs", "reason"}],
-          "fixes": [{"kind", "what", "cost"}],
+          "fixes": [{"kind", "what", "cost", "worst_case"}],
           "notes": ["..."]
         }
       ]
@@ -216,6 +216,10 @@ def block_to_dict(b: BlockResult) -> dict[str, Any]:
                 "kind": getattr(f, "kind", ""),
                 "what": getattr(f, "what", str(f)),
                 "cost": getattr(f, "cost", None),
+                "worst_case": {
+                    name: {"low": _num(lo), "high": _num(hi)}
+                    for name, (lo, hi) in getattr(f, "windows", {}).items()
+                },
             }
             for f in fixes
         ],
