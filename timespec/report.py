@@ -233,7 +233,8 @@ def render_report(result: Result) -> str:
         out.append(render_block(block))
         out.append("")
     counts = {v: sum(1 for b in result.blocks if b.verdict == v) for v in _VERDICT}
-    summary = ", ".join(f"{n} {v}" for v, n in counts.items() if n)
+    plural = {"meets": "meet", "fails": "fail", "infeasible": "infeasible"}
+    summary = ", ".join(f"{n} {v if n == 1 else plural[v]}" for v, n in counts.items() if n)
     out.append(f"{len(result.blocks)} block{'s' if len(result.blocks) != 1 else ''}: {summary}")
     return "\n".join(out) + "\n"
 
