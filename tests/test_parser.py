@@ -386,3 +386,10 @@ def test_spread_normal_sigma_words() -> None:
     # Regression: "sigma" used to be read as a unit (pint knows a constant of that name).
     b = one(BASE + "oneshot a: width 1 ms ±10%; spread normal 3 sigma").blocks[0]
     assert (b.statistics.distribution, b.statistics.sigmas) == ("normal", 3.0)
+
+
+def test_odd_unit_products_are_spec_errors() -> None:
+    # Regression (found by mutation fuzzing): pint raised its own DimensionalityError
+    # for "%degC" instead of our error.
+    with pytest.raises(SpecUnitError, match="mixes units"):
+        one(BASE + "oneshot a: width 1 ms ±10%; ambient 0 %degC to 50 degC")

@@ -150,6 +150,14 @@ def unit_info(text: str) -> UnitInfo:
         raise ValueError(_unknown_unit_message(text)) from exc
     except Exception as exc:  # pint raises assorted errors for odd strings
         raise ValueError(_unknown_unit_message(text)) from exc
+    try:
+        return _classify(reg, name, unit)
+    except Exception as exc:  # pint refuses odd products such as %·degC
+        raise ValueError(f"unit {text!r} mixes units in a way timespec cannot read") from exc
+
+
+def _classify(reg: pint.UnitRegistry[Any], name: str, unit: Any) -> UnitInfo:
+    """Match a parsed pint unit to one of :data:`KINDS` and find its scale and offset."""
     dim = unit.dimensionality
     for kind, (_symbol, ref) in KINDS.items():
         ref_unit = reg.Unit(ref)
