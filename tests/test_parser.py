@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import math
 import pickle
+from pathlib import Path
 
 import pytest
 from hypothesis import given, settings
@@ -393,3 +394,37 @@ def test_odd_unit_products_are_spec_errors() -> None:
     # for "%degC" instead of our error.
     with pytest.raises(SpecUnitError, match="mixes units"):
         one(BASE + "oneshot a: width 1 ms ±10%; ambient 0 %degC to 50 degC")
+
+
+_DEMO = (Path(__file__).resolve().parent.parent / "examples" / "bench_instrument.tspec").read_text(
+    encoding="utf-8"
+)
+
+
+@settings(max_examples=300)
+@given(
+    edits=st.lists(
+        st.tuples(
+            st.integers(0, len(_DEMO) - 1),
+            st.sampled_from(["replace", "delete", "insert"]),
+            st.sampled_from(list('0123456789 .,:;+-±%kKmMnuµpRCE\n#"') + ["to", "of"]),
+        ),
+        min_size=1,
+        max_size=4,
+    )
+)
+def test_mutated_demo_gives_a_spec_or_our_error(edits: list[tuple[int, str, str]]) -> None:
+    # Mutation fuzzing of a real spec: whatever the damage, only SpecError may come out.
+    text = list(_DEMO)
+    for where, how, char in edits:
+        where = min(where, len(text) - 1)
+        if how == "replace":
+            text[where] = char
+        elif how == "delete":
+            del text[where]
+        else:
+            text.insert(where, char)
+    try:
+        timespec.parse("".join(text))
+    except SpecError as err:
+        assert str(err)
