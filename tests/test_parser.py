@@ -407,7 +407,7 @@ _DEMO = (Path(__file__).resolve().parent.parent / "examples" / "bench_instrument
         st.tuples(
             st.integers(0, len(_DEMO) - 1),
             st.sampled_from(["replace", "delete", "insert"]),
-            st.sampled_from(list('0123456789 .,:;+-±%kKmMnuµpRCE\n#"') + ["to", "of"]),
+            st.sampled_from([*'0123456789 .,:;+-±%kKmMnuµpRCE\n#"', "to", "of"]),
         ),
         min_size=1,
         max_size=4,
