@@ -257,3 +257,10 @@ def test_electrolytic_leakage_enters_the_worst_case() -> None:
     d = Design((resistor_part("R", 100e3, blk.resistors), big))
     names = {f.name: f for f in fam.factors(blk, d)}
     assert names["leak"].high == pytest.approx(0.01 * 100 * 25.2 * 1e-6)
+
+
+def test_unstated_conditions_are_noted() -> None:
+    res = solve_block(block("oneshot a: width 150 ms ±8% at supply 12 V; timer cmos"))
+    assert any("no ambient range stated" in n for n in res.notes)
+    assert any("taken as exactly 12 V" in n for n in res.notes)
+    assert not [n for n in solve_block(block()).notes if "ambient" in n or "exactly" in n]

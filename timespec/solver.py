@@ -316,6 +316,23 @@ def _analyse_many(
     return out
 
 
+def _condition_notes(block: Block) -> list[str]:
+    """Say when a worst case leaves out a condition because the spec did not state it."""
+    notes: list[str] = []
+    c = block.conditions
+    if "ambient" not in block.positions:
+        notes.append(
+            "no ambient range stated: temperature effects are left out (the worst case is at "
+            "25 °C); add e.g. 'ambient -10 degC to 60 degC'"
+        )
+    if "supply" in block.positions and c.supply.low == c.supply.high and block.kind != "crystal":
+        notes.append(
+            f"the supply is taken as exactly {c.supply.low:g} V; give its tolerance "
+            "(e.g. 'supply 12 V ±5%') to include supply variation"
+        )
+    return notes
+
+
 def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
     """Choose (or check) the parts of one block at worst case.
 
@@ -358,7 +375,7 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
         for c in analysed[1 : 1 + ALTERNATIVES]
     )
     best = Candidate(best.design, best.outputs, best.findings, "best of the candidates")
-    notes: list[str] = []
+    notes: list[str] = _condition_notes(block)
     if best.meets:
         verdict = "meets"
     elif mode == "checked":
