@@ -161,6 +161,15 @@ def _candidate_line(c: Candidate) -> str:
     return f"{parts}: {wc} — {c.rank_reason}"
 
 
+def _fix_lines(result: BlockResult) -> list[str]:
+    lines: list[str] = []
+    fixes: Sequence[object] = result.extra.get("fixes", ())
+    for i, fix in enumerate(fixes):
+        what = getattr(fix, "what", str(fix))
+        lines += _wrap("to fix" if i == 0 else "", f"{i + 1}. {what}")
+    return lines
+
+
 def render_block(result: BlockResult) -> str:
     """Render one block's section of the report.
 
@@ -182,7 +191,9 @@ def render_block(result: BlockResult) -> str:
     lines = [head + "─" * max(3, _WIDTH - len(head) - len(verdict) - 1) + " " + verdict]
     best = result.best
     if best is None:
-        lines += [f"  {n}" for n in result.notes]
+        for note in result.notes:
+            lines += _wrap("note", note)
+        lines += _fix_lines(result)
         return "\n".join(lines)
     if best.design.variant:
         lines.append(f"  {'circuit':<11}{best.design.variant}")
@@ -205,10 +216,7 @@ def render_block(result: BlockResult) -> str:
         )
     for note in result.notes:
         lines += _wrap("note", note)
-    fixes: Sequence[object] = result.extra.get("fixes", ())
-    for i, fix in enumerate(fixes):
-        what = getattr(fix, "what", str(fix))
-        lines += _wrap("to fix" if i == 0 else "", f"{i + 1}. {what}")
+    lines += _fix_lines(result)
     for i, alt in enumerate(result.alternatives):
         lines += _wrap("runners-up" if i == 0 else "", _candidate_line(alt))
     return "\n".join(lines)

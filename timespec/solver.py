@@ -360,6 +360,7 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
             notes=(
                 "no standard value in the allowed ranges comes near the requirement; "
                 "widen the resistor or capacitor range",
+                *_condition_notes(block),
             ),
         )
     chosen = _shortlist(block, fam, designs, shortlist)
