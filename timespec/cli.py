@@ -13,6 +13,8 @@ Commands:
 ``timespec limits FILE``
     Fixture acceptance limits (time and capture-clock counts) from the spec's
     ``fixture:`` section.
+``timespec plot FILE -o chart.png``
+    Margin chart of every requirement (needs the ``plot`` extra).
 ``timespec format FILE...``
     Canonical layout of spec files (``--check`` for CI, ``--write`` in place).
 
@@ -34,7 +36,7 @@ from typing import TextIO
 from timespec import __version__
 from timespec.errors import SpecError, UsageError
 
-__all__ = ["main", "write_atomic"]
+__all__ = ["main", "write_atomic", "write_atomic_bytes"]
 
 EXIT_OK = 0
 EXIT_FAILED = 1
@@ -96,6 +98,17 @@ def _build_parser() -> argparse.ArgumentParser:
         choices=("guarded", "simple", "expected"),
         help="override the fixture section's decision rule",
     )
+
+    p_plot = sub.add_parser("plot", help="margin chart of every requirement (PNG, SVG or PDF)")
+    p_plot.add_argument("spec", metavar="FILE", help="the .tspec file")
+    p_plot.add_argument(
+        "--output",
+        "-o",
+        metavar="PATH",
+        required=True,
+        help="image to write (.png, .svg or .pdf), atomically",
+    )
+    p_plot.add_argument("--samples", type=_whole(1), metavar="N", help="Monte Carlo samples")
 
     p_format = sub.add_parser("format", help="lay spec files out canonically")
     p_format.add_argument("specs", metavar="FILE", nargs="+", help="the .tspec files")
@@ -162,6 +175,43 @@ def write_atomic(path: str | Path, text: str) -> None:
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
             fh.write(text)
+        os.replace(tmp, dest)
+    except BaseException:
+        Path(tmp).unlink(missing_ok=True)
+        raise
+
+
+def _figure_bytes(fig: object, fmt: str) -> bytes:
+    import io
+
+    buf = io.BytesIO()
+    fig.savefig(buf, format=fmt, dpi=120)  # type: ignore[attr-defined]
+    return buf.getvalue()
+
+
+def write_atomic_bytes(path: str | Path, data: bytes) -> None:
+    """Write bytes to a file atomically (see :func:`write_atomic`).
+
+    Parameters
+    ----------
+    path
+        Destination.
+    data
+        Content.
+
+    Raises
+    ------
+    UsageError
+        When the folder does not exist or cannot be written.
+    """
+    dest = Path(path)
+    folder = dest.parent if str(dest.parent) else Path(".")
+    if not folder.is_dir():
+        raise UsageError(f"cannot write {str(dest)!r}: folder {str(folder)!r} does not exist")
+    fd, tmp = tempfile.mkstemp(prefix=f".{dest.name}.", suffix=".tmp", dir=folder)
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
         os.replace(tmp, dest)
     except BaseException:
         Path(tmp).unlink(missing_ok=True)
@@ -243,6 +293,19 @@ def _run(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
             else render_limits(lims)
         )
         _emit(text, args.output, stdout)
+        return EXIT_OK if result.ok else EXIT_FAILED
+    if args.command == "plot":
+        from timespec.plot import margin_chart
+
+        suffix = Path(args.output).suffix.lower()
+        if suffix not in (".png", ".svg", ".pdf"):
+            raise UsageError(
+                f"cannot tell the image format of {args.output!r}: use .png, .svg or .pdf"
+            )
+        result = api.solve(spec, samples=args.samples, fixes=False)
+        fig = margin_chart(result)
+        write_atomic_bytes(args.output, _figure_bytes(fig, suffix[1:]))
+        stdout.write(f"wrote {args.output}\n")
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "table":
         from timespec.tables import render_table
