@@ -14,7 +14,7 @@ from collections.abc import Mapping, Sequence
 from typing import Literal
 
 from timespec import __version__
-from timespec.analysis import RssResult, corner_label
+from timespec.analysis import RssResult
 from timespec.fmt import (
     format_interval,
     format_part,
@@ -124,16 +124,26 @@ def _output_lines(out: OutputResult, result: BlockResult) -> list[str]:
 def _corner_text(
     label: str, at: Mapping[str, float], result: BlockResult, rss: RssResult | None
 ) -> str:
-    """The corner, keeping only inputs that carry at least 1 % of the variance."""
+    """The corner in words, keeping only inputs that carry at least 1 % of the variance."""
     if rss is None or not at or not result.factors:
         return label
-    keep = {c.name for c in rss.contributions if c.share >= 0.01}
-    shown = {k: v for k, v in at.items() if k in keep}
-    if not shown:
+    share = {c.name: c.share for c in rss.contributions}
+    keep = [f for f in result.factors if f.name in at and share.get(f.name, 0.0) >= 0.01]
+    if not keep:
         return label
-    rest = len([k for k in at if k not in keep])
-    text = corner_label(shown, result.factors)
-    return text + (f" (and {rest} minor inputs)" if rest else "")
+    keep.sort(key=lambda f: -share[f.name])
+    words = []
+    for f in keep:
+        value = at[f.name]
+        if f.name == "temp":
+            words.append(f"ambient {value:g} °C")
+        elif f.name == "supply":
+            words.append(f"supply {value:g} V")
+        else:
+            end = "low" if value == f.low else "high" if value == f.high else f"at {value:.4g}"
+            words.append(f"{f.label.split(' (')[0]} {end}")
+    rest = len(at) - len(keep)
+    return ", ".join(words) + (f" (and {rest} minor inputs)" if rest else "")
 
 
 def _contributors(result: BlockResult) -> list[str]:
