@@ -248,3 +248,31 @@ def test_full_factorial_count_with_mixed_factors() -> None:
     worst_case(fs, model, interior_points=5)
     grid = set(itertools.product([0.0, 1.0], [0.0, 1.0], [0.0, 1.0, 2.0, 3.0, 4.0]))
     assert grid <= visited and len(visited) == 20  # nominal (0,0,0) is a grid point
+
+
+def test_declared_directions_give_the_same_extremes_with_fewer_points() -> None:
+    # f = a·b + c over a box where f rises in a (b > 0) and falls in c: declaring that
+    # must not change the extremes found by enumerating every corner.
+    import dataclasses
+
+    from timespec.analysis import Factor, worst_case
+
+    calls: list[int] = []
+
+    def model(x: dict[str, np.ndarray]) -> dict[str, np.ndarray]:
+        calls.append(len(x["a"]))
+        return {"f": x["a"] * x["b"] - x["c"] + x["d"] * x["e"]}
+
+    facs = [
+        Factor("a", "a", 1.0, 0.5, 2.0, rising=("f",)),
+        Factor("b", "b", 1.0, 0.5, 3.0),
+        Factor("c", "c", 0.0, -1.0, 1.0, falling=("f",)),
+        Factor("d", "d", 0.0, -1.0, 1.0),
+        Factor("e", "e", 0.0, -2.0, 2.0),
+    ]
+    fast = worst_case(facs, model)["f"]
+    reduced = sum(calls)
+    calls.clear()
+    full = worst_case([dataclasses.replace(f, rising=(), falling=()) for f in facs], model)["f"]
+    assert (fast.low, fast.high) == (full.low, full.high)
+    assert reduced < sum(calls)

@@ -264,3 +264,31 @@ def test_unstated_conditions_are_noted() -> None:
     assert any("no ambient range stated" in n for n in res.notes)
     assert any("taken as exactly 12 V" in n for n in res.notes)
     assert not [n for n in solve_block(block()).notes if "ambient" in n or "exactly" in n]
+
+
+@settings(max_examples=20, deadline=None)
+@given(
+    r=st.sampled_from([1e3, 47e3, 619e3, 2e6]),
+    c=st.sampled_from([10e-9, 220e-9, 1e-6]),
+    leak=st.sampled_from(["", "  leakage 1 uA max\n"]),
+    control=st.sampled_from(["", "  control 7 V ±3%\n"]),
+)
+def test_declared_monotone_factors_give_the_full_worst_case(
+    r: float, c: float, leak: str, control: str
+) -> None:
+    # The width's declared rising/falling factors let the search skip half of each
+    # declared axis; the result must equal the exhaustive corner search (the proof in
+    # WIDTH_RISING's comment, checked here by brute force).
+    import dataclasses
+
+    from timespec.analysis import worst_case
+
+    blk = block(SPEC + leak + control)
+    fam = family("oneshot")
+    d = Design((resistor_part("R", r, blk.resistors), capacitor_part("C", c, blk.capacitors)))
+    facs = fam.factors(blk, d)
+    assert any(f.rising for f in facs)
+    plain = [dataclasses.replace(f, rising=(), falling=()) for f in facs]
+    fast = worst_case(facs, fam.evaluate(blk, ""))["width"]
+    full = worst_case(plain, fam.evaluate(blk, ""))["width"]
+    assert (fast.low, fast.high) == (full.low, full.high)

@@ -387,7 +387,7 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
             f"none of the {len(designs)} candidate designs from the allowed parts meets the "
             "requirement at worst case; the closest is shown"
         )
-    factors: tuple[Factor, ...] = tuple(fam.factors(block, best.design))
+    factors: tuple[Factor, ...] = tuple(facs_of.get(best.design) or fam.factors(block, best.design))
     return BlockResult(
         block=block,
         verdict=verdict,

@@ -71,6 +71,13 @@ class Factor:
     group : str, optional
         Grouping key for contributors, e.g. ``"R1"``, ``"C1"``, ``"timer"``,
         ``"operating"``.
+    rising, falling : tuple of str, optional
+        Outputs known to be non-decreasing (``rising``) or non-increasing
+        (``falling``) in this factor everywhere in the box, whatever the other
+        factors are.  The worst-case search then fixes the factor at the right
+        end for each extreme instead of enumerating both, which halves its grid
+        per declared factor.  A declaration is a proof obligation of the family
+        that makes it; tests compare the reduced search with the full one.
 
     Raises
     ------
@@ -88,6 +95,8 @@ class Factor:
     sigmas: float = 3.0
     monotone: bool = True
     group: str = ""
+    rising: tuple[str, ...] = ()
+    falling: tuple[str, ...] = ()
 
     def __post_init__(self) -> None:
         if not self.name:

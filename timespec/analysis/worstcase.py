@@ -172,6 +172,10 @@ def worst_case(
     if interior_points < 2:
         raise ValueError(f"interior_points must be at least 2, got {interior_points}")
     facs = check_factors(factors)
+    if any(f.rising or f.falling for f in facs):
+        return worst_case_many(
+            facs, evaluate, {}, interior_points=interior_points, max_points=max_points
+        )[0]
     varying = [f for f in facs if is_varying(f)]
     levels = [_levels(f, interior_points) for f in varying]
     count = math.prod(len(lv) for lv in levels)
@@ -234,7 +238,8 @@ def worst_case_many(
     evaluate : Evaluate
         Vectorised model.
     overrides : mapping of str to FloatArray
-        For some *fixed* factors, one value per variant (all arrays the same length).
+        For some *fixed* factors, one value per variant (all arrays the same
+        length); empty for a single variant.
     interior_points, max_points : int, optional
         As for :func:`worst_case`.
 
@@ -254,38 +259,126 @@ def worst_case_many(
     -----
     The grid of :func:`worst_case` is built once and evaluated for all variants in
     one vectorised call (in chunks), which is what makes ranking a shortlist of
-    designs cheap.
+    designs cheap.  Factors that declare an output ``rising`` or ``falling`` are
+    fixed at the end that gives each extreme of that output (for the minimum of
+    a rising output, the low end: any point of the box is at least the value with
+    that factor at its low end), so the grid for that output only spans the
+    other factors; outputs with the same declarations share their grids.  NaN is
+    only detected at the points searched.
     """
     if interior_points < 2:
         raise ValueError(f"interior_points must be at least 2, got {interior_points}")
     facs = check_factors(factors)
     by_name = {f.name: f for f in facs}
     sizes = {len(np.atleast_1d(v)) for v in overrides.values()}
-    if len(sizes) != 1:
+    if len(sizes) > 1:
         raise ValueError("override arrays must all have the same length")
-    (d_total,) = sizes
+    d_total = sizes.pop() if sizes else 1
     for name in overrides:
         if name not in by_name or is_varying(by_name[name]):
             raise ValueError(f"override {name!r} is not a fixed factor")
-    varying = [f for f in facs if is_varying(f)]
-    levels = [_levels(f, interior_points) for f in varying]
-    count = math.prod(len(lv) for lv in levels)
-    if count > max_points:
-        raise ValueError(f"worst-case grid has {count} points, more than max_points={max_points}")
-    strides = [math.prod(len(lv) for lv in levels[j + 1 :]) for j in range(len(levels))]
-    index = np.arange(count, dtype=np.int64)
-    grid = {
-        f.name: lv[(index // st) % len(lv)]
-        for f, lv, st in zip(varying, levels, strides, strict=True)
-    }
-    fixed = [f for f in facs if not is_varying(f)]
     ov = {k: np.asarray(np.atleast_1d(v), dtype=np.float64) for k, v in overrides.items()}
+    varying = [f for f in facs if is_varying(f)]
+    fixed = [f for f in facs if not is_varying(f)]
 
     nominal_in = {k: np.repeat(v, d_total) for k, v in nominal_inputs(facs).items()}
     nominal_in.update(ov)
     nominal = call_evaluate(evaluate, nominal_in, d_total)
 
+    # Outputs grouped by the factors declared monotone for them (sign per factor).
+    groups: dict[tuple[tuple[str, int], ...], list[str]] = {}
+    for key in nominal:
+        sig = tuple(
+            (f.name, 1 if key in f.rising else -1)
+            for f in varying
+            if key in f.rising or key in f.falling
+        )
+        groups.setdefault(sig, []).append(key)
+
+    low_t: dict[str, list[_Tracker]] = {k: [] for k in nominal}
+    high_t: dict[str, list[_Tracker]] = {k: [] for k in nominal}
+    low_at: dict[str, list[dict[str, float]]] = {k: [] for k in nominal}
+    high_at: dict[str, list[dict[str, float]]] = {k: [] for k in nominal}
+    for sig, keys in groups.items():
+        declared = dict(sig)
+        free = [f for f in varying if f.name not in declared]
+        levels = [_levels(f, interior_points) for f in free]
+        count = math.prod(len(lv) for lv in levels)
+        if count > max_points:
+            raise ValueError(
+                f"worst-case grid has {count} points, more than max_points={max_points}; "
+                "mark fewer factors monotone=False, lower interior_points or raise max_points"
+            )
+        strides = [math.prod(len(lv) for lv in levels[j + 1 :]) for j in range(len(levels))]
+        index = np.arange(count, dtype=np.int64)
+        grid = {
+            f.name: lv[(index // st) % len(lv)]
+            for f, lv, st in zip(free, levels, strides, strict=True)
+        }
+        sides = ("low", "high") if declared else ("both",)
+        for side in sides:
+            ends = {
+                name: (by_name[name].low if (sign > 0) == (side == "low") else by_name[name].high)
+                for name, sign in declared.items()
+            }
+            trackers = _search(fixed, grid, ends, ov, count, d_total, evaluate, nominal, keys)
+            for key in keys:
+                for j, tracker in enumerate(trackers[key]):
+                    at = _point(tracker.low_index, free, levels, strides)
+                    at_hi = _point(tracker.high_index, free, levels, strides)
+                    if tracker.nan_index is not None:
+                        at = at_hi = _point(tracker.nan_index, free, levels, strides)
+                    at = {**at, **ends} if tracker.low_index >= 0 else at
+                    at_hi = {**at_hi, **ends} if tracker.high_index >= 0 else at_hi
+                    if side in ("low", "both"):
+                        _store(low_t[key], low_at[key], j, tracker, at)
+                    if side in ("high", "both"):
+                        _store(high_t[key], high_at[key], j, tracker, at_hi)
     results: list[dict[str, Extremes]] = []
+    for j in range(d_total):
+        res: dict[str, Extremes] = {}
+        for key in nominal:
+            lo, hi = low_t[key][j], high_t[key][j]
+            nom = float(nominal[key][j])
+            if lo.nan_index is not None or hi.nan_index is not None:
+                at = low_at[key][j] if lo.nan_index is not None else high_at[key][j]
+                res[key] = Extremes(nom, math.nan, math.nan, at, dict(at))
+            else:
+                res[key] = Extremes(nom, lo.low, hi.high, low_at[key][j], high_at[key][j])
+        results.append(res)
+    return results
+
+
+def _store(
+    trackers: list[_Tracker],
+    points: list[dict[str, float]],
+    j: int,
+    tracker: _Tracker,
+    at: dict[str, float],
+) -> None:
+    if len(trackers) <= j:
+        trackers.append(tracker)
+        points.append(at)
+    else:  # pragma: no cover - each output is searched once per side
+        trackers[j] = tracker
+        points[j] = at
+
+
+def _search(
+    fixed: Sequence[Factor],
+    grid: Mapping[str, FloatArray],
+    ends: Mapping[str, float],
+    ov: Mapping[str, FloatArray],
+    count: int,
+    d_total: int,
+    evaluate: Evaluate,
+    nominal: Mapping[str, FloatArray],
+    keys: Sequence[str],
+) -> dict[str, list[_Tracker]]:
+    """Evaluate one grid for every variant; a tracker per output and variant."""
+    trackers: dict[str, list[_Tracker]] = {
+        k: [_Tracker(float(nominal[k][j])) for j in range(d_total)] for k in keys
+    }
     per_call = max(1, _CHUNK // max(count, 1))
     for d0 in range(0, d_total, per_call):
         d1 = min(d0 + per_call, d_total)
@@ -297,32 +390,20 @@ def worst_case_many(
                 inputs[f.name] = np.repeat(ov[f.name][d0:d1], count)
             else:
                 inputs[f.name] = np.full(n, f.nominal)
+        for name, value in ends.items():
+            inputs[name] = np.full(n, value)
         for name, col in grid.items():
             inputs[name] = np.tile(col, d)
         outputs = call_evaluate(evaluate, inputs, n)
-        if outputs.keys() != nominal.keys():
+        if not set(keys) <= outputs.keys():
             raise ValueError(
                 f"evaluate returned outputs {sorted(outputs)}, expected {sorted(nominal)}"
             )
-        for j in range(d):
-            res: dict[str, Extremes] = {}
-            for key, arr in outputs.items():
-                row = arr[j * count : (j + 1) * count]
-                tracker = _Tracker(float(nominal[key][d0 + j]))
-                tracker.update(row, 0)
-                if tracker.nan_index is not None:
-                    at = _point(tracker.nan_index, varying, levels, strides)
-                    res[key] = Extremes(tracker.low, math.nan, math.nan, at, dict(at))
-                else:
-                    res[key] = Extremes(
-                        nominal=float(nominal[key][d0 + j]),
-                        low=tracker.low,
-                        high=tracker.high,
-                        low_at=_point(tracker.low_index, varying, levels, strides),
-                        high_at=_point(tracker.high_index, varying, levels, strides),
-                    )
-            results.append(res)
-    return results
+        for key in keys:
+            arr = outputs[key]
+            for j in range(d):
+                trackers[key][d0 + j].update(arr[j * count : (j + 1) * count], 0)
+    return trackers
 
 
 def _short_name(factor: Factor) -> str:

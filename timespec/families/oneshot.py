@@ -13,6 +13,8 @@ control voltage, part tolerance, tempco or dielectric drift, and ageing.
 
 from __future__ import annotations
 
+import dataclasses
+import functools
 from collections.abc import Mapping
 
 import numpy as np
@@ -57,6 +59,28 @@ def _seconds(t: float) -> str:
     return f"{t * 1e6:.4g} µs"
 
 
+#: Factors in which the width never falls, anywhere in the box: more R or C (any
+#: tolerance, ageing or dielectric drift), a higher threshold or control voltage, or
+#: more current drawn from the node (the node settles lower, so it charges longer).
+#: ``t = R·C·ln((V' − v0)/(V' − vth))`` with ``V' = V − i·R`` and ``v0 = V'·ron/(R + ron)``:
+#: the ratio ``V'·R/(R + ron)/(V' − vth)`` grows with R, with vth and with i, and the
+#: timer's drift terms only scale it by a positive factor.
+WIDTH_RISING = frozenset(
+    {"R.tol", "R.age", "C.tol", "C.age", "C.drift", "timer.ratio", "timer.ith", "leak", "control"}
+)
+#: Factors in which the width never rises: the discharge on-resistance lifts the start.
+WIDTH_FALLING = frozenset({"timer.ron"})
+
+
+@functools.lru_cache(maxsize=4096)
+def _declare(factor: Factor) -> Factor:
+    if factor.name in WIDTH_RISING:
+        return dataclasses.replace(factor, rising=("width",))
+    if factor.name in WIDTH_FALLING:
+        return dataclasses.replace(factor, falling=("width",))
+    return factor
+
+
 class OneShot:
     """555-type monostable family."""
 
@@ -91,7 +115,9 @@ class OneShot:
         Returns
         -------
         list of Factor
-            Parts, conditions, timer class, leakage and (when forced) the control voltage.
+            Parts, conditions, timer class, leakage and (when forced) the control
+            voltage; the factors in which the width is monotone say so (see
+            :data:`WIDTH_RISING`), which shrinks the worst-case search.
         """
         out: list[Factor] = []
         for part in design.parts:
@@ -111,7 +137,7 @@ class OneShot:
                     group="operating",
                 )
             )
-        return out
+        return [_declare(f) for f in out]
 
     def evaluate(self, block: Block, variant: str) -> Evaluate:
         """The vectorised model.
