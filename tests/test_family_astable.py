@@ -282,3 +282,96 @@ def test_stalled_oscillator_reports_inf_not_nan() -> None:
     out = FAM.evaluate(b, "feedback")(x)
     assert math.isinf(out["high"][0]) and math.isinf(out["duty"][0])
     assert out["frequency"][0] == 0.0
+
+
+# --------------------------------------------------------------------------
+# declared monotone factors (the proofs beside ALWAYS / GUARDED in the family)
+
+DECLARE_POLICIES = [
+    POLICY,
+    # wide temperature, life, class-2 ceramic (drift and ageing factors), stated leakage
+    """  supply 5 V ±10%
+  ambient -40 degC to 85 degC
+  life 10 years
+  resistors E96 1% 100 ppm/K, 1k to 1M
+  capacitors E6 10% X7R, 1n to 1u
+  leakage 20 nA max
+""",
+    # aluminium electrolytic: its own leakage bound (µA) enters as the ``leak`` factor
+    """  supply 9 V ±10%
+  ambient -20 degC to 70 degC
+  life 5 years
+  resistors E24 5% 200 ppm/K, 1k to 1M
+  capacitors E6 20% AL, 1u to 100u
+""",
+]
+
+
+def _same(a: float, b: float) -> bool:
+    return a == b or (math.isnan(a) and math.isnan(b))
+
+
+def _check_declarations_exact(
+    variant: str, policy: str, timer: str, values: dict[str, float]
+) -> None:
+    # The declared search must give EXACTLY the extremes of the full corner search
+    # (brute-force check of the monotonicity proofs in the family module).
+    import dataclasses
+
+    circuit = f"  circuit {variant}\n  timer {timer}\n"
+    b = block("  frequency 2 kHz ±12%\n" + circuit, policy)
+    design = FAM._design(b, variant, values)
+    facs = FAM.factors(b, design)
+    assert any(f.rising or f.falling for f in facs)
+    plain = [dataclasses.replace(f, rising=(), falling=()) for f in facs]
+    model = FAM.evaluate(b, variant)
+    fast = worst_case(facs, model)
+    full = worst_case(plain, model)
+    for name, e in full.items():
+        got = fast[name]
+        assert _same(got.low, e.low) and _same(got.high, e.high), (name, got, e)
+
+
+def _capacitor(policy: str, share: float) -> float:
+    """A capacitor inside the policy's range (1 µF…100 µF electrolytic, else 1 nF…1 µF)."""
+    return 1e-6 * (1.0 + 99.0 * share) if "AL" in policy else 1e-9 * (1.0 + 999.0 * share)
+
+
+_DECLARE_CASES = {
+    "policy": st.sampled_from(range(len(DECLARE_POLICIES))),
+    "timer": st.sampled_from(["bipolar", "cmos"]),
+    "ra": st.floats(1e3, 1e6),
+    "rb": st.floats(1e3, 1e6),
+    "share": st.floats(0.0, 1.0),
+}
+
+
+@settings(max_examples=6, deadline=None)
+@given(**_DECLARE_CASES)
+def test_declared_monotone_factors_exact_classic(
+    policy: int, timer: str, ra: float, rb: float, share: float
+) -> None:
+    text = DECLARE_POLICIES[policy]
+    values = {"RA": ra, "RB": rb, "C": _capacitor(text, share)}
+    _check_declarations_exact("classic", text, timer, values)
+
+
+@settings(max_examples=6, deadline=None)
+@given(**_DECLARE_CASES)
+def test_declared_monotone_factors_exact_diode(
+    policy: int, timer: str, ra: float, rb: float, share: float
+) -> None:
+    text = DECLARE_POLICIES[policy]
+    values = {"RA": ra, "RB": rb, "C": _capacitor(text, share)}
+    _check_declarations_exact("diode", text, timer, values)
+
+
+@settings(max_examples=6, deadline=None)
+@given(**_DECLARE_CASES)
+def test_declared_monotone_factors_exact_feedback(
+    policy: int, timer: str, ra: float, rb: float, share: float
+) -> None:
+    # rb unused: the feedback circuit has one resistor
+    text = DECLARE_POLICIES[policy]
+    values = {"R": ra, "C": _capacitor(text, share)}
+    _check_declarations_exact("feedback", text, timer, values)

@@ -238,3 +238,41 @@ def test_delay_scales_with_capacitance(k: float, r: float, c: float) -> None:
     # shift, any circuit-theory handbook): scaling C by k scales the delay by k.
     blk = block_of(RACK)
     assert nominal_delay(blk, r, k * c) == pytest.approx(k * nominal_delay(blk, r, c), rel=1e-9)
+
+
+@settings(max_examples=25, deadline=None)
+@given(
+    r=st.sampled_from([4.7e3, 100e3, 1e6]),
+    c=st.sampled_from([1e-9, 100e-9, 2.2e-6]),
+    threshold=st.sampled_from(["0.55 to 0.75 of supply", "0.5 of supply", "2 V to 3 V"]),
+    start=st.sampled_from(["", "  start 0.4 V\n", "  start -0.3 V\n", "  start 2.8 V\n"]),
+    leak=st.sampled_from(["", "  leakage 5 nA max\n", "  leakage 2 uA max\n"]),
+    caps=st.sampled_from(["E12 5% C0G, 100p to 10u", "E6 20% AL, 1u to 100u", "E6 10% X7R, 10n to 10u"]),
+)
+def test_declared_monotone_factors_give_the_full_worst_case(
+    r: float, c: float, threshold: str, start: str, leak: str, caps: str
+) -> None:
+    # The delay's declared rising/falling factors let the search skip half of each
+    # declared axis; the result must equal the exhaustive corner search exactly (the
+    # proof beside DELAY_RISING_BELOW and in `declarations`, checked here by brute
+    # force), including designs whose node never reaches the threshold (inf) and
+    # starts above part of the threshold band (nothing but C declared then).
+    import dataclasses
+
+    text = (
+        "delay d:\n  supply 4.5 V to 5.5 V\n  ambient -20 degC to 85 degC\n"
+        "  resistors E96 1% 100 ppm/K, 1k to 10M\n"
+        f"  capacitors {caps}\n  delay 10 ms to 30 ms\n  threshold {threshold}\n  life 10 years\n"
+        + start
+        + leak
+    )
+    blk = block_of(text)
+    fam = Delay()
+    cap = capacitor_part("C", c, blk.capacitors)
+    d = Design((resistor_part("R", r, blk.resistors), cap))
+    facs = fam.factors(blk, d)
+    assert any(f.rising for f in facs)
+    plain = [dataclasses.replace(f, rising=(), falling=()) for f in facs]
+    fast = worst_case(facs, fam.evaluate(blk, ""))["delay"]
+    full = worst_case(plain, fam.evaluate(blk, ""))["delay"]
+    assert (fast.low, fast.high) == (full.low, full.high)

@@ -33,6 +33,8 @@ capacitor).  All triples are never enumerated.
 
 from __future__ import annotations
 
+import dataclasses
+import functools
 import itertools
 import math
 from collections.abc import Callable, Mapping
@@ -42,6 +44,7 @@ import numpy as np
 from timespec.analysis import Factor, worst_case
 from timespec.errors import SpecValueError
 from timespec.families.base import (
+    REFERENCE_C,
     Design,
     Evaluate,
     Finding,
@@ -70,10 +73,12 @@ from timespec.physics import astable
 from timespec.rkm import format_rkm
 
 __all__ = [
+    "ALWAYS",
     "DEFAULT_DUTY",
     "DIODE_DROP_BAND",
     "DIODE_TC_BAND",
     "FEEDBACK_LOW_MAX",
+    "GUARDED",
     "KEEP",
     "KEEP_PER_VARIANT",
     "RAIL_OUTPUT_SHARE",
@@ -429,6 +434,196 @@ def _outputs(th: FloatArray, tl: FloatArray) -> dict[str, FloatArray]:
 
 
 # --------------------------------------------------------------------------
+# monotone factors (declared so the worst-case search skips half of each axis)
+#
+# Notation: effective parts Ra, Rb, R, C (each a positive product of its value and
+# (1 + tol)(1 + age)(1 + drift), so rising in those factors; the ``.tc`` factors
+# multiply (T − 25), change sign and are never declared), drain i = ith + leak ≥ 0,
+# thresholds lo = kV/2, hi = kV.  Both half-periods are multiplied by the same
+# timer scale s = (1 + drift·(T − 25))(1 + vco·(V − V_nom)), which must be positive
+# (checked on the box, else nothing is declared); temperature, supply, the timer's
+# drift and vco, and the diode tempco are never declared.
+#
+# High time.  Every circuit charges the node from lo to hi with a current that
+# falls as v rises: tH = ∫[lo, hi] C dv / I(v), I = I_c(v) − i, inf where I ≤ 0.
+# Classic I_c = (V − v)/(Ra + Rb); feedback I_c = (V − drop − v)/R; diode
+# I_c = max((V − vd − v)/Ra, (V − v)/(Ra + Rb)) — the two pieces of
+# :func:`~timespec.physics.astable.diode_high_time` meet at v_x, where the diode
+# current vanishes, and below v_x the diode branch carries more (clipping v_x into
+# [lo, hi] is the same max).  So tH rises with C, Ra, Rb, R, i, vd (v25) and drop
+# (each lowers I or scales it), and with k: d/dk ∫[ak, 2ak] g = a(2g(2ak) − g(ak))
+# > 0 with g = C/I rising in v.  An unreachable threshold (inf) stays unreachable
+# in the rising direction.  ``timer.ron`` and ``output.low`` do not enter tH.
+#
+# Low time.  tL = Rt·C·ln(1 + c/(c − ve)) with c = kV/2; classic and diode:
+# Rt = Rb + r_n, ve = v_n − i·Rt (discharge node v_n = V·ron/(Ra + ron),
+# r_n = Ra·ron/(Ra + ron)); feedback: Rt = R, ve = V_ol − i·R.  Rising in C;
+# falling in i (ve falls, Rt does not move; inf turns finite, never back).  Rising
+# in Rb or R where v_n (V_ol) ≤ c: with u = c − ve, z = c/u,
+# d tL/d Rt ∝ ln(1 + z) − z/(1 + z)·(1 − z + v_n/u) ≥ ln(1 + z) − z/(1 + z) ≥ 0.
+# Rising in ron where V > i·Ra (v_n and r_n both rise, d ve/d ron ∝ V − i·Ra), and
+# in V_ol.  Not monotone in Ra (r_n rises, v_n falls) nor in k (d/dk has the sign
+# of −ve, either sign).  vd and drop do not enter tL.
+#
+# Period = s(tH + tL) rises where both rise or one is untouched; frequency = 1/T
+# falls there.  Duty = tH/(tH + tL) rises where tH rises and tL falls or is
+# untouched, and falls the other way round; it is never declared for C (constant
+# in exact arithmetic, rounding noise in floating point) nor where a time may be
+# inf (the model reports duty inf there).  The statements that need finite times,
+# v_n ≤ c and V > i·Ra are only declared when the box guarantees them (see
+# :func:`_finite_everywhere`).
+
+_Declared = Mapping[str, tuple[tuple[str, ...], tuple[str, ...]]]
+_PARTS_UP = ("tol", "age", "drift")
+_C_ONLY = {f"C.{p}": (("high", "low", "period"), ("frequency",)) for p in _PARTS_UP}
+
+#: Declarations that hold everywhere the timer scale is positive: ``factor →
+#: (rising outputs, falling outputs)``, per variant.
+ALWAYS: Mapping[str, _Declared] = {
+    "classic": {
+        **_C_ONLY,
+        **{f"{r}.{p}": (("high",), ()) for r in ("RA", "RB") for p in ("tol", "age")},
+        "timer.ratio": (("high",), ()),
+        "timer.ith": (("high",), ("low",)),
+        "leak": (("high",), ("low",)),
+        "timer.ron": (("high",), ()),
+    },
+    "diode": {
+        **_C_ONLY,
+        **{f"{r}.{p}": (("high",), ()) for r in ("RA", "RB") for p in ("tol", "age")},
+        "timer.ratio": (("high",), ()),
+        "timer.ith": (("high",), ("low",)),
+        "leak": (("high",), ("low",)),
+        "timer.ron": (("high",), ()),
+        "diode.v25": (("high", "low"), ()),
+    },
+    "feedback": {
+        **_C_ONLY,
+        **{f"R.{p}": (("high",), ()) for p in ("tol", "age")},
+        "timer.ratio": (("high",), ()),
+        "timer.ith": (("high",), ("low",)),
+        "leak": (("high",), ("low",)),
+        "output.drop": (("high", "low"), ()),
+        "output.low": (("high", "low"), ()),
+    },
+}
+
+_RB_UP = {f"RB.{p}": (("high", "low", "period"), ("frequency",)) for p in ("tol", "age")}
+_DRAIN_UP = {
+    "timer.ith": (("high", "duty"), ("low",)),
+    "leak": (("high", "duty"), ("low",)),
+}
+
+#: Declarations that also need finite times, ``v_n ≤ kV/2`` and ``V > i·Ra`` over
+#: the whole box (they replace the :data:`ALWAYS` entry of the same factor).
+GUARDED: Mapping[str, _Declared] = {
+    "classic": {
+        **_RB_UP,
+        **_DRAIN_UP,
+        "timer.ron": (("high", "low", "period"), ("frequency", "duty")),
+    },
+    "diode": {
+        **_RB_UP,
+        **_DRAIN_UP,
+        "timer.ron": (("high", "low", "period"), ("frequency", "duty")),
+        "diode.v25": (("high", "low", "period", "duty"), ("frequency",)),
+    },
+    "feedback": {
+        **{f"R.{p}": (("high", "low", "period"), ("frequency",)) for p in ("tol", "age")},
+        **_DRAIN_UP,
+        "output.drop": (("high", "low", "period", "duty"), ("frequency",)),
+        "output.low": (("high", "low", "period"), ("frequency", "duty")),
+    },
+}
+
+
+def _bounds(facs: Mapping[str, Factor], ref: str, t_dev: float) -> tuple[float, float]:
+    """Smallest and largest effective value of a part over the box."""
+    value = facs[f"{ref}.value"].nominal
+    lo = hi = value
+    for p in _PARTS_UP:
+        f = facs.get(f"{ref}.{p}")
+        if f is not None:
+            lo, hi = lo * (1.0 + f.low), hi * (1.0 + f.high)
+    tc = facs.get(f"{ref}.tc")
+    if tc is not None:
+        dev = max(abs(tc.low), abs(tc.high)) * 1e-6 * t_dev
+        lo, hi = lo * (1.0 - dev), hi * (1.0 + dev)
+    return lo, hi
+
+
+def _span(facs: Mapping[str, Factor], name: str) -> tuple[float, float]:
+    f = facs.get(name)
+    return (0.0, 0.0) if f is None else (f.low, f.high)
+
+
+def _scale_positive(facs: Mapping[str, Factor]) -> bool:
+    """Whether the timer's drift scale ``s`` stays positive over the whole box."""
+    t_lo, t_hi = _span(facs, "temp")
+    t_dev = max(abs(t_lo - REFERENCE_C), abs(t_hi - REFERENCE_C))
+    v_lo, v_hi = _span(facs, "supply")
+    v_nom = facs["supply.nominal"].nominal
+    v_dev = max(abs(v_lo - v_nom), abs(v_hi - v_nom))
+    d = max(map(abs, _span(facs, "timer.drift"))) * 1e-6 * t_dev
+    g = max(map(abs, _span(facs, "timer.vco"))) * v_dev
+    return d < 1.0 and g < 1.0
+
+
+def _finite_everywhere(facs: Mapping[str, Factor], variant: str) -> bool:
+    """Whether both times are finite, ``v_n < kV/2`` and ``V > i·Ra`` over the whole box.
+
+    Notes
+    -----
+    Sufficient bounds from the box ends: the high time is finite when the
+    charging current at ``hi`` beats the largest drain,
+    ``V_min·(1 − k_max) − v_max > i_max·R_max`` (classic ``v = 0``,
+    ``R = Ra + Rb``; diode also with ``v = vd_max``, ``R = Ra``; feedback
+    ``v = drop_max``, ``R = R``), which also gives ``V > i·Ra``; the low time is
+    finite, and rising in Rb, when ``ron_max/(Ra_min + ron_max) < k_min/2``
+    (feedback: ``V_ol,max < k_min·V_min/2``).
+    """
+    t_lo, t_hi = _span(facs, "temp")
+    t_dev = max(abs(t_lo - REFERENCE_C), abs(t_hi - REFERENCE_C))
+    v_min = _span(facs, "supply")[0]
+    k_lo, k_hi = _span(facs, "timer.ratio")
+    i_max = _span(facs, "timer.ith")[1] + _span(facs, "leak")[1]
+    room = v_min * (1.0 - k_hi)
+    if variant == "feedback":
+        r_max = _bounds(facs, "R", t_dev)[1]
+        high_ok = room - _span(facs, "output.drop")[1] > i_max * r_max
+        return high_ok and _span(facs, "output.low")[1] < 0.5 * k_lo * v_min
+    ra_lo, ra_hi = _bounds(facs, "RA", t_dev)
+    rb_hi = _bounds(facs, "RB", t_dev)[1]
+    high_ok = room > i_max * (ra_hi + rb_hi)
+    if variant == "diode" and not high_ok:
+        tc_lo, tc_hi = _span(facs, "diode.tc")
+        vd_max = _span(facs, "diode.v25")[1] + 1e-3 * max(
+            tc * (t - REFERENCE_C) for tc in (tc_lo, tc_hi) for t in (t_lo, t_hi)
+        )
+        high_ok = room - max(vd_max, 0.0) > i_max * ra_hi
+    ron = _span(facs, "timer.ron")[1]
+    return high_ok and ron < 0.5 * k_lo * (ra_lo + ron)
+
+
+@functools.lru_cache(maxsize=4096)
+def _declare(factor: Factor, variant: str, guarded: bool) -> Factor:
+    table = GUARDED[variant] if guarded else {}
+    entry = table.get(factor.name) or ALWAYS[variant].get(factor.name)
+    if entry is None:
+        return factor
+    return dataclasses.replace(factor, rising=entry[0], falling=entry[1])
+
+
+def _declared(factors: list[Factor], variant: str) -> list[Factor]:
+    """The factors with their proven monotone outputs declared (see the comment above)."""
+    by_name = {f.name: f for f in factors}
+    if not _scale_positive(by_name):
+        return factors
+    guarded = _finite_everywhere(by_name, variant)
+    return [_declare(f, variant, guarded) for f in factors]
+
+
+# --------------------------------------------------------------------------
 # the family
 
 
@@ -510,7 +705,7 @@ class Astable:
                     group="timer",
                 )
             )
-            return out
+            return _declared(out, "feedback")
         out.extend(timer)
         if design.variant == "diode":
             lo, hi = _diode_band(block)
@@ -535,7 +730,7 @@ class Astable:
                     group="diode",
                 )
             )
-        return out
+        return _declared(out, design.variant)
 
     def evaluate(self, block: Block, variant: str) -> Evaluate:
         """The vectorised model of one circuit variant.

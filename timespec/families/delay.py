@@ -24,6 +24,8 @@ as the supply rises), so the corners of the factor box give the exact worst case
 
 from __future__ import annotations
 
+import dataclasses
+import functools
 import math
 from collections.abc import Callable, Mapping
 
@@ -53,7 +55,15 @@ from timespec.model import Block, Window
 from timespec.physics import rcdelay
 from timespec.rkm import format_rkm
 
-__all__ = ["Delay", "aim_nominal", "rc_candidates", "seconds"]
+__all__ = [
+    "DELAY_RISING_ALWAYS",
+    "DELAY_RISING_BELOW",
+    "Delay",
+    "aim_nominal",
+    "declarations",
+    "rc_candidates",
+    "seconds",
+]
 
 
 def seconds(t: float) -> str:
@@ -130,6 +140,95 @@ def _threshold_volts(block: Block) -> tuple[float, float]:
     return win.low, win.high
 
 
+#: Factors in which the delay never falls, whatever the block: more C (tolerance,
+#: ageing, class-2 or electrolytic drift; not the tempco, which multiplies ``T − 25``
+#: and so changes sign across the ambient range).  ``t = R·C·ln(q)`` with ``q ≥ 1``
+#: (or ``inf``) independent of C, so ``t`` is C times a non-negative constant.
+DELAY_RISING_ALWAYS = frozenset({"C.tol", "C.age", "C.drift"})
+#: Factors in which the delay never falls once the start voltage lies below every
+#: threshold of the box (``v0 < Vth``).  Write ``V' = V − i·R`` (``i ≥ 0``); then
+#: ``q = (V' − v0)/(V' − Vth) = 1 + (Vth − v0)/(V' − Vth)`` for ``V' > Vth`` and
+#: ``t = inf`` for ``V' ≤ Vth`` (and for ``V' ≤ v0``): ``t`` never rises with ``V'``
+#: and never falls with ``Vth``.  More R (tolerance, ageing) multiplies the
+#: non-negative ``ln(q)`` by a larger ``R·C`` and lowers ``V'``; more drain lowers
+#: ``V'``; a higher threshold (a share of a positive supply or volts) raises ``Vth``.
+#: With ``v0 ≥ Vth`` the node may discharge down to the threshold instead, where
+#: none of this holds, so nothing of this set is declared then.
+DELAY_RISING_BELOW = frozenset({"R.tol", "R.age", "leak", "threshold"})
+
+
+def _threshold_volt_range(block: Block) -> tuple[float, float]:
+    """Lowest and highest threshold voltage over the whole factor box (any signs)."""
+    win = _threshold_window(block)
+    if win.kind != "ratio":
+        return win.low, win.high
+    s = block.conditions.supply
+    corners = [k * v for k in (win.low, win.high) for v in (s.low, s.high)]
+    return min(corners), max(corners)
+
+
+def declarations(block: Block, leak: float) -> tuple[frozenset[str], frozenset[str]]:
+    """Names of the factors in which the delay provably rises, and falls, over the box.
+
+    Parameters
+    ----------
+    block
+        The block.
+    leak
+        The node's leakage bound, A (0: no ``leak`` factor).
+
+    Returns
+    -------
+    tuple of frozenset of str
+        ``(rising, falling)``.
+
+    Notes
+    -----
+    See :data:`DELAY_RISING_ALWAYS` and :data:`DELAY_RISING_BELOW`.  The supply
+    (never the ambient, which acts through the tempcos' ``T − 25``) is declared
+    only where its sign is fixed, with ``v0`` below every threshold:
+
+    * threshold in volts: ``V'`` rises with ``V``, so the delay falls;
+    * threshold a share ``k`` of the supply (``0 < k < 1``, ``V > 0``):
+      ``q = (V − i·R − v0)/((1 − k)·V − i·R)`` has
+      ``dq/dV ∝ (1 − k)·v0 − k·i·R``, negative everywhere when ``v0 < 0`` (the
+      delay falls), positive everywhere when ``v0 > 0`` and there is no drain (it
+      rises).  With ``v0 = 0`` the delay does not depend on the supply without a
+      drain, so its value at either end differs only by rounding: not declared,
+      nor where the sign of ``dq/dV`` changes inside the box.
+
+    References
+    ----------
+    First-order RC charging law, any circuit-theory handbook (the derivatives are
+    our own, checked against an exhaustive corner search in the tests).
+    """
+    rising = set(DELAY_RISING_ALWAYS)
+    falling: set[str] = set()
+    start = block.number("start") or 0.0
+    vth_lo, _ = _threshold_volt_range(block)
+    win = _threshold_window(block)
+    s = block.conditions.supply
+    if start < vth_lo and (win.kind != "ratio" or s.low > 0.0):
+        rising |= DELAY_RISING_BELOW
+        if win.kind != "ratio":
+            falling.add("supply")
+        elif 0.0 < win.low and win.high < 1.0 and s.low > 0.0:
+            if start < 0.0:
+                falling.add("supply")
+            elif start > 0.0 and leak <= 0.0:
+                rising.add("supply")
+    return frozenset(rising), frozenset(falling)
+
+
+@functools.lru_cache(maxsize=4096)
+def _declare(factor: Factor, rising: frozenset[str], falling: frozenset[str]) -> Factor:
+    if factor.name in rising:
+        return dataclasses.replace(factor, rising=("delay",))
+    if factor.name in falling:
+        return dataclasses.replace(factor, falling=("delay",))
+    return factor
+
+
 class Delay:
     """RC delay into an input threshold."""
 
@@ -166,7 +265,9 @@ class Delay:
         list of Factor
             Parts, ambient and supply, ``threshold`` (a share of the supply or
             volts, uniform over its window, nominal at its centre) and ``leak``
-            (0 … the ``leakage`` bound, A) when a leakage is given.
+            (0 … the ``leakage`` bound, A) when a leakage is given; the factors
+            in which the delay is provably monotone say so (see
+            :func:`declarations`), which shrinks the worst-case search.
         """
         out: list[Factor] = []
         for part in design.parts:
@@ -190,7 +291,8 @@ class Delay:
                     group="leakage",
                 )
             )
-        return out
+        rising, falling = declarations(block, leak)
+        return [_declare(f, rising, falling) for f in out]
 
     def evaluate(self, block: Block, variant: str) -> Evaluate:
         """The vectorised model.
