@@ -31,6 +31,7 @@ from timespec.families.crystal import (
     Crystal,
     accuracy_budget,
     capacitor_policy,
+    declare,
     stray_window,
 )
 from timespec.model import Block
@@ -447,7 +448,7 @@ def test_declared_monotone_factors_give_the_full_worst_case(
     policy = capacitor_policy(blk)
     d = Design((capacitor_part("C1", c1, policy), capacitor_part("C2", c2, policy)))
     fam = Crystal()
-    facs = fam.factors(blk, d)
+    facs = declare(blk, fam.factors(blk, d))
     assert any(f.rising for f in facs)
     plain = [dataclasses.replace(f, rising=(), falling=()) for f in facs]
     fast = worst_case(facs, fam.evaluate(blk, ""))

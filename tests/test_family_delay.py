@@ -247,7 +247,9 @@ def test_delay_scales_with_capacitance(k: float, r: float, c: float) -> None:
     threshold=st.sampled_from(["0.55 to 0.75 of supply", "0.5 of supply", "2 V to 3 V"]),
     start=st.sampled_from(["", "  start 0.4 V\n", "  start -0.3 V\n", "  start 2.8 V\n"]),
     leak=st.sampled_from(["", "  leakage 5 nA max\n", "  leakage 2 uA max\n"]),
-    caps=st.sampled_from(["E12 5% C0G, 100p to 10u", "E6 20% AL, 1u to 100u", "E6 10% X7R, 10n to 10u"]),
+    caps=st.sampled_from(
+        ["E12 5% C0G, 100p to 10u", "E6 20% AL, 1u to 100u", "E6 10% X7R, 10n to 10u"]
+    ),
 )
 def test_declared_monotone_factors_give_the_full_worst_case(
     r: float, c: float, threshold: str, start: str, leak: str, caps: str

@@ -41,7 +41,7 @@ from collections.abc import Callable, Mapping
 
 import numpy as np
 
-from timespec.analysis import Factor, worst_case
+from timespec.analysis import Factor, is_varying, worst_case
 from timespec.errors import SpecValueError
 from timespec.families.base import (
     REFERENCE_C,
@@ -81,7 +81,9 @@ __all__ = [
     "GUARDED",
     "KEEP",
     "KEEP_PER_VARIANT",
+    "PAYS",
     "RAIL_OUTPUT_SHARE",
+    "RATIO_GUARDED",
     "VARIANTS",
     "Astable",
     "duty_band",
@@ -472,6 +474,14 @@ def _outputs(th: FloatArray, tl: FloatArray) -> dict[str, FloatArray]:
 # inf (the model reports duty inf there).  The statements that need finite times,
 # v_n ≤ c and V > i·Ra are only declared when the box guarantees them (see
 # :func:`_finite_everywhere`).
+#
+# Classic period in k (with those guards, and :func:`_ratio_raises_period`):
+# dtH/dk = R·C·a·x/((x − ak)(x − 2ak)) with a = V/2, x = V − i·R > 2ak; that falls
+# with x (x > √2·ak), so it is at least R·C/(2(1 − k/2)(1 − k)).  dtL/dk =
+# −Rt·C·a·ve/((2ak − ve)(ak − ve)) is negative only for ve > 0, and then, rising in
+# ve ≤ v_n = ρV (ρ = ron/(Ra + ron) < k/2), at least −Rt·C·ρ/(2(k − ρ)(k/2 − ρ)).
+# With Rt = Rb + r_n ≤ Ra + Rb = R the period rises in k wherever
+# (k − ρ)(k/2 − ρ) ≥ ρ(1 − k/2)(1 − k), worst at k_min and ρ_max.
 
 _Declared = Mapping[str, tuple[tuple[str, ...], tuple[str, ...]]]
 _PARTS_UP = ("tol", "age", "drift")
@@ -605,22 +615,113 @@ def _finite_everywhere(facs: Mapping[str, Factor], variant: str) -> bool:
     return high_ok and ron < 0.5 * k_lo * (ra_lo + ron)
 
 
+def _ratio_raises_period(facs: Mapping[str, Factor]) -> bool:
+    """Whether the classic period provably rises with the threshold ratio (comment above)."""
+    t_lo, t_hi = _span(facs, "temp")
+    t_dev = max(abs(t_lo - REFERENCE_C), abs(t_hi - REFERENCE_C))
+    k = _span(facs, "timer.ratio")[0]
+    ron = _span(facs, "timer.ron")[1]
+    rho = ron / (_bounds(facs, "RA", t_dev)[0] + ron)
+    return k > 2.0 * rho and (k - rho) * (0.5 * k - rho) >= rho * (1.0 - 0.5 * k) * (1.0 - k)
+
+
+#: With :data:`GUARDED` and :func:`_ratio_raises_period`: the classic period.
+RATIO_GUARDED: Mapping[str, _Declared] = {
+    "classic": {"timer.ratio": (("high", "period"), ("frequency",))},
+}
+
+
+def _entry(name: str, variant: str, level: int) -> tuple[tuple[str, ...], tuple[str, ...]] | None:
+    """``(rising, falling)`` outputs of a factor at a proof level (0, 1 or 2)."""
+    entry = None
+    if level >= 2:
+        entry = RATIO_GUARDED.get(variant, {}).get(name)
+    if entry is None and level >= 1:
+        entry = GUARDED[variant].get(name)
+    if entry is None:
+        entry = ALWAYS[variant].get(name)
+    return entry
+
+
 @functools.lru_cache(maxsize=4096)
-def _declare(factor: Factor, variant: str, guarded: bool) -> Factor:
-    table = GUARDED[variant] if guarded else {}
-    entry = table.get(factor.name) or ALWAYS[variant].get(factor.name)
+def _declare(factor: Factor, variant: str, level: int) -> Factor:
+    entry = _entry(factor.name, variant, level)
     if entry is None:
         return factor
     return dataclasses.replace(factor, rising=entry[0], falling=entry[1])
 
 
-def _declared(factors: list[Factor], variant: str) -> list[Factor]:
-    """The factors with their proven monotone outputs declared (see the comment above)."""
+_OUTPUT_NAMES = ("frequency", "period", "duty", "high", "low")
+
+#: Declarations are used when the per-output grids together visit at most this
+#: share of the plain grid's points (each extra grid costs a model call or more:
+#: measured on the demo blocks, a saving of 10 % does not pay, 40 % does).
+PAYS = 0.75
+
+#: Grid levels of a factor not marked monotone (the engine's default).
+_INTERIOR = 9
+
+
+@functools.lru_cache(maxsize=256)
+def _pays(variant: str, level: int, varying: tuple[tuple[str, bool], ...]) -> bool:
+    """Whether the declared search visits at most :data:`PAYS` of the plain grid.
+
+    The search runs one grid per group of outputs with the same declarations, over
+    the undeclared factors, once per extreme (the undeclared group once).
+    """
+    sizes = {name: 2 if monotone else _INTERIOR for name, monotone in varying}
+    groups: set[tuple[tuple[str, int], ...]] = set()
+    for key in _OUTPUT_NAMES:
+        sig: list[tuple[str, int]] = []
+        for name in sizes:
+            entry = _entry(name, variant, level)
+            if entry is not None and key in entry[0]:
+                sig.append((name, 1))
+            elif entry is not None and key in entry[1]:
+                sig.append((name, -1))
+        groups.add(tuple(sig))
+    cost = 0
+    for group in groups:
+        declared = {name for name, _ in group}
+        free = math.prod(n for name, n in sizes.items() if name not in declared)
+        cost += (2 if group else 1) * free
+    return cost <= PAYS * math.prod(sizes.values())
+
+
+def _level(factors: list[Factor], variant: str) -> int | None:
+    """Proof level the box allows: None (nothing), 0 (:data:`ALWAYS`), 1
+    (:data:`GUARDED`) or 2 (:data:`RATIO_GUARDED`)."""
     by_name = {f.name: f for f in factors}
     if not _scale_positive(by_name):
+        return None
+    if not _finite_everywhere(by_name, variant):
+        return 0
+    return 2 if variant == "classic" and _ratio_raises_period(by_name) else 1
+
+
+def _declarations(factors: list[Factor], variant: str) -> list[Factor]:
+    """The factors with every proven monotone output declared (see the comment above)."""
+    level = _level(factors, variant)
+    if level is None:
         return factors
-    guarded = _finite_everywhere(by_name, variant)
-    return [_declare(f, variant, guarded) for f in factors]
+    return [_declare(f, variant, level) for f in factors]
+
+
+def _declared(factors: list[Factor], variant: str) -> list[Factor]:
+    """The factors as the worst-case search should get them: declared when that pays.
+
+    Declarations only change how many points the search visits, never its
+    result; where the per-output grids would together save too little
+    (:data:`PAYS`; e.g. the classic circuit without ageing), the factors are
+    returned undeclared.
+    """
+    level = _level(factors, variant)
+    if level is None:
+        return factors
+    varying = tuple((f.name, f.monotone) for f in factors if is_varying(f))
+    if not _pays(variant, level, varying):
+        return factors
+    return [_declare(f, variant, level) for f in factors]
 
 
 # --------------------------------------------------------------------------

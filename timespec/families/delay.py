@@ -212,7 +212,7 @@ def declarations(block: Block, leak: float) -> tuple[frozenset[str], frozenset[s
         rising |= DELAY_RISING_BELOW
         if win.kind != "ratio":
             falling.add("supply")
-        elif 0.0 < win.low and win.high < 1.0 and s.low > 0.0:
+        elif win.low > 0.0 and win.high < 1.0 and s.low > 0.0:
             if start < 0.0:
                 falling.add("supply")
             elif start > 0.0 and leak <= 0.0:
