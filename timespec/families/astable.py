@@ -66,6 +66,7 @@ from timespec.families.base import (
     timer_factors,
     window_score,
 )
+from timespec.fmt import format_quantity
 from timespec.model import Block, PinnedPart, Window
 from timespec.physics import astable
 from timespec.rkm import format_rkm
@@ -122,24 +123,6 @@ _REFS: Mapping[str, tuple[str, ...]] = {
     "diode": ("RA", "RB", "C"),
     "feedback": ("R", "C"),
 }
-
-
-def _seconds(t: float) -> str:
-    if not math.isfinite(t):
-        return "never"
-    if t >= 1.0:
-        return f"{t:.4g} s"
-    if t >= 1e-3:
-        return f"{t * 1e3:.4g} ms"
-    return f"{t * 1e6:.4g} µs"
-
-
-def _hertz(f: float) -> str:
-    if f >= 1e6:
-        return f"{f / 1e6:.4g} MHz"
-    if f >= 1e3:
-        return f"{f / 1e3:.4g} kHz"
-    return f"{f:.4g} Hz"
 
 
 def _ohms(r: float) -> str:
@@ -1007,7 +990,8 @@ class Astable:
                 Finding(
                     "error",
                     "frequency-above-class",
-                    f"the design runs at up to {_hertz(f_hi)}, above the {_hertz(timer.f_max)} "
+                    f"the design runs at up to {format_quantity(f_hi, 'frequency')}, "
+                    f"above the {format_quantity(timer.f_max, 'frequency')} "
                     f"the {timer.name} timer class is used at. {advice}",
                 )
             )

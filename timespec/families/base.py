@@ -19,6 +19,8 @@ own physics.
 
 from __future__ import annotations
 
+import dataclasses
+import functools
 import math
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
@@ -55,6 +57,7 @@ __all__ = [
     "candidate_values",
     "capacitor_part",
     "condition_factors",
+    "declare_monotone",
     "dielectric_findings",
     "neighbour_parts",
     "neighbour_parts_many",
@@ -62,6 +65,7 @@ __all__ = [
     "pair_part",
     "part_factors",
     "resistor_part",
+    "scale_to_goal",
     "scaled_time",
     "snap",
     "timer_factors",
@@ -626,3 +630,64 @@ def by_ref(parts: Sequence[Part]) -> dict[str, Part]:
         ref → part.
     """
     return {p.ref: p for p in parts}
+
+
+def scale_to_goal(
+    model: Callable[[FloatArray], FloatArray], goal: float, x0: FloatArray
+) -> FloatArray:
+    """Refine continuous part values so that a time comes out on target.
+
+    Parameters
+    ----------
+    model
+        Maps an array of part values to the resulting times.
+    goal
+        The time to aim at.
+    x0
+        First guesses (from the ideal closed form).
+
+    Returns
+    -------
+    FloatArray
+        The values after two multiplicative corrections ``x ← x·goal/model(x)``;
+        nan where the model gives no finite positive time.
+
+    Notes
+    -----
+    Times of RC circuits are nearly proportional to R and to C, so two
+    corrections bring in the second-order effects (drain current, on-resistance).
+    """
+    x = np.asarray(x0, dtype=np.float64)
+    for _ in range(2):
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            t = np.asarray(model(x), dtype=np.float64)
+            ratio = np.where(np.isfinite(t) & (t > 0), goal / t, np.nan)
+        x = x * ratio
+    return x
+
+
+@functools.lru_cache(maxsize=8192)
+def declare_monotone(
+    factor: Factor, output: str, rising: frozenset[str], falling: frozenset[str]
+) -> Factor:
+    """Mark a factor as moving one output monotonically (see :class:`~timespec.analysis.Factor`).
+
+    Parameters
+    ----------
+    factor
+        The factor.
+    output
+        The output name.
+    rising, falling
+        Names of the factors in which the output never falls / never rises.
+
+    Returns
+    -------
+    Factor
+        The factor with ``rising=(output,)`` or ``falling=(output,)``, or unchanged.
+    """
+    if factor.name in rising:
+        return dataclasses.replace(factor, rising=(output,))
+    if factor.name in falling:
+        return dataclasses.replace(factor, falling=(output,))
+    return factor

@@ -24,10 +24,8 @@ as the supply rises), so the corners of the factor box give the exact worst case
 
 from __future__ import annotations
 
-import dataclasses
-import functools
 import math
-from collections.abc import Callable, Mapping
+from collections.abc import Mapping
 
 import numpy as np
 
@@ -44,10 +42,12 @@ from timespec.families.base import (
     candidate_values,
     capacitor_part,
     condition_factors,
+    declare_monotone,
     dielectric_findings,
     node_leakage,
     part_factors,
     resistor_part,
+    scale_to_goal,
     snap,
 )
 from timespec.fmt import format_quantity
@@ -62,32 +62,7 @@ __all__ = [
     "aim_nominal",
     "declarations",
     "rc_candidates",
-    "seconds",
 ]
-
-
-def seconds(t: float) -> str:
-    """Format a time for a message.
-
-    Parameters
-    ----------
-    t
-        Seconds.
-
-    Returns
-    -------
-    str
-        E.g. ``"12.5 ms"``.
-    """
-    if not math.isfinite(t):
-        return "never"
-    if t >= 1.0:
-        return f"{t:.4g} s"
-    if t >= 1e-3:
-        return f"{t * 1e3:.4g} ms"
-    if t >= 1e-6:
-        return f"{t * 1e6:.4g} µs"
-    return f"{t * 1e9:.4g} ns"
 
 
 def aim_nominal(window: Window, low_ratio: float, high_ratio: float) -> float:
@@ -220,15 +195,6 @@ def declarations(block: Block, leak: float) -> tuple[frozenset[str], frozenset[s
     return frozenset(rising), frozenset(falling)
 
 
-@functools.lru_cache(maxsize=4096)
-def _declare(factor: Factor, rising: frozenset[str], falling: frozenset[str]) -> Factor:
-    if factor.name in rising:
-        return dataclasses.replace(factor, rising=("delay",))
-    if factor.name in falling:
-        return dataclasses.replace(factor, falling=("delay",))
-    return factor
-
-
 class Delay:
     """RC delay into an input threshold."""
 
@@ -292,7 +258,7 @@ class Delay:
                 )
             )
         rising, falling = declarations(block, leak)
-        return [_declare(f, rising, falling) for f in out]
+        return [declare_monotone(f, "delay", rising, falling) for f in out]
 
     def evaluate(self, block: Block, variant: str) -> Evaluate:
         """The vectorised model.
@@ -456,7 +422,8 @@ class Delay:
                 "discharge-between-cycles",
                 "the capacitor must empty between power cycles or a short supply dip gives a "
                 f"short delay: through R alone (supply pulled to 0 V) it takes up to "
-                f"{seconds(t_empty)} to fall to 10 % of the lowest threshold. A diode across "
+                f"{format_quantity(t_empty, 'time')} "
+                "to fall to 10 % of the lowest threshold. A diode across "
                 "R (anode at the node, cathode at the supply) empties it as fast as the "
                 "supply falls.",
             )
@@ -558,14 +525,14 @@ def rc_candidates(
     designs: list[Design] = []
     if pin_c is not None:
         c = np.array([pin_c.value])
-        r = _refine(lambda rr: time_for(rr, c), goal, goal / (c * k0))
+        r = scale_to_goal(lambda rr: time_for(rr, c), goal, goal / (c * k0))
         below, above = snap(rp.series, r, r_lo, r_hi)
         for val in _values(below, above):
             designs.append(Design((resistor_part("R", val, rp), capacitor_part("C", 0, cp, pin_c))))
         return designs
     if pin_r is not None:
         rv = np.array([pin_r.value])
-        c = _refine(lambda cc: time_for(rv, cc), goal, goal / (rv * k0))
+        c = scale_to_goal(lambda cc: time_for(rv, cc), goal, goal / (rv * k0))
         below, above = snap(cp.series, c, cp.low, cp.high)
         for val in _values(below, above):
             designs.append(Design((resistor_part("R", 0, rp, pin_r), capacitor_part("C", val, cp))))
@@ -573,7 +540,7 @@ def rc_candidates(
     cs = candidate_values(cp.series, cp.low, cp.high)
     if cs.size == 0:
         return []
-    r = _refine(lambda rr: time_for(rr, cs), goal, goal / (cs * k0))
+    r = scale_to_goal(lambda rr: time_for(rr, cs), goal, goal / (cs * k0))
     below, above = snap(rp.series, r, r_lo, r_hi)
     for cval, rb, ra in zip(cs, below, above, strict=True):
         for val in _values(np.array([rb]), np.array([ra])):
@@ -581,17 +548,6 @@ def rc_candidates(
                 Design((resistor_part("R", val, rp), capacitor_part("C", float(cval), cp)))
             )
     return designs
-
-
-def _refine(model: Callable[[FloatArray], FloatArray], goal: float, x0: FloatArray) -> FloatArray:
-    """Two multiplicative corrections: scale the guess by goal / model(guess)."""
-    x = np.asarray(x0, dtype=np.float64)
-    for _ in range(2):
-        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-            t = np.asarray(model(x), dtype=np.float64)
-            ratio = np.where(np.isfinite(t) & (t > 0), goal / t, np.nan)
-        x = x * ratio
-    return x
 
 
 def _values(below: FloatArray, above: FloatArray) -> list[float]:

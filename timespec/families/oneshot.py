@@ -13,8 +13,6 @@ control voltage, part tolerance, tempco or dielectric drift, and ageing.
 
 from __future__ import annotations
 
-import dataclasses
-import functools
 from collections.abc import Mapping
 
 import numpy as np
@@ -31,6 +29,7 @@ from timespec.families.base import (
     candidate_values,
     capacitor_part,
     condition_factors,
+    declare_monotone,
     dielectric_findings,
     drain_current,
     neighbour_parts,
@@ -38,6 +37,7 @@ from timespec.families.base import (
     node_leakage,
     part_factors,
     resistor_part,
+    scale_to_goal,
     scaled_time,
     supply_nominal_factor,
     target,
@@ -51,14 +51,6 @@ from timespec.rkm import format_rkm
 __all__ = ["OneShot"]
 
 
-def _seconds(t: float) -> str:
-    if t >= 1.0:
-        return f"{t:.4g} s"
-    if t >= 1e-3:
-        return f"{t * 1e3:.4g} ms"
-    return f"{t * 1e6:.4g} µs"
-
-
 #: Factors in which the width never falls, anywhere in the box: more R or C (any
 #: tolerance, ageing or dielectric drift), a higher threshold or control voltage, or
 #: more current drawn from the node (the node settles lower, so it charges longer).
@@ -70,15 +62,6 @@ WIDTH_RISING = frozenset(
 )
 #: Factors in which the width never rises: the discharge on-resistance lifts the start.
 WIDTH_FALLING = frozenset({"timer.ron"})
-
-
-@functools.lru_cache(maxsize=4096)
-def _declare(factor: Factor) -> Factor:
-    if factor.name in WIDTH_RISING:
-        return dataclasses.replace(factor, rising=("width",))
-    if factor.name in WIDTH_FALLING:
-        return dataclasses.replace(factor, falling=("width",))
-    return factor
 
 
 class OneShot:
@@ -137,7 +120,7 @@ class OneShot:
                     group="operating",
                 )
             )
-        return [_declare(f) for f in out]
+        return [declare_monotone(f, "width", WIDTH_RISING, WIDTH_FALLING) for f in out]
 
     def evaluate(self, block: Block, variant: str) -> Evaluate:
         """The vectorised model.
@@ -215,7 +198,7 @@ class OneShot:
         designs: list[Design] = []
         if pin_c is not None:
             c = np.array([pin_c.value])
-            r = _refine(
+            r = scale_to_goal(
                 lambda rr: width_for(rr, np.broadcast_to(c, rr.shape)),
                 goal,
                 goal / (c * np.log(3.0)),
@@ -225,7 +208,7 @@ class OneShot:
             return designs
         if pin_r is not None:
             r_fixed = np.array([pin_r.value])
-            c = _refine(
+            c = scale_to_goal(
                 lambda cc: width_for(np.broadcast_to(r_fixed, cc.shape), cc),
                 goal,
                 goal / (r_fixed * np.log(3.0)),
@@ -237,7 +220,7 @@ class OneShot:
         if cs.size == 0:
             return []
         r0 = goal / (cs * np.log(3.0))
-        r = _refine(lambda rr: width_for(rr, cs), goal, r0)
+        r = scale_to_goal(lambda rr: width_for(rr, cs), goal, r0)
         for cval, rparts in zip(cs, neighbour_parts_many("R", r, rp), strict=True):
             cpart = capacitor_part("C", float(cval), cp)
             designs.extend(Design((rpart, cpart)) for rpart in rparts)
@@ -276,8 +259,10 @@ class OneShot:
                 Finding(
                     "error",
                     "trigger-outlasts-pulse",
-                    f"the trigger is held low for {_seconds(trig)} but the pulse can be as short "
-                    f"as {_seconds(lo)}: the output stays high until the trigger returns. "
+                    "the trigger is held low for "
+                    f"{format_quantity(trig, 'time')} but the pulse can be as short "
+                    f"as {format_quantity(lo, 'time')}: "
+                    "the output stays high until the trigger returns. "
                     "Shorten the trigger (an RC differentiator on the trigger input) "
                     "or lengthen the pulse.",
                 )
@@ -297,8 +282,10 @@ class OneShot:
                     Finding(
                         "error",
                         "retrigger-before-recovery",
-                        f"triggers may come {_seconds(spacing)} apart but the pulse can last "
-                        f"{_seconds(hi)} plus {_seconds(recovery)} to discharge the capacitor: "
+                        f"triggers may come {format_quantity(spacing, 'time')} "
+                        "apart but the pulse can last "
+                        f"{format_quantity(hi, 'time')} plus "
+                        f"{format_quantity(recovery, 'time')} to discharge the capacitor: "
                         "a trigger would be missed or the next pulse shortened.",
                     )
                 )
@@ -339,16 +326,3 @@ class OneShot:
             )
         out.extend(dielectric_findings(block, c))
         return out
-
-
-def _refine(model: object, goal: float, r0: FloatArray) -> FloatArray:
-    """Two secant-free corrections: scale the guess by goal / model(guess)."""
-    f = model  # a callable taking the array of guesses
-    assert callable(f)
-    r = np.asarray(r0, dtype=np.float64)
-    for _ in range(2):
-        with np.errstate(divide="ignore", invalid="ignore"):
-            w = np.asarray(f(r), dtype=np.float64)
-            ratio = np.where(np.isfinite(w) & (w > 0), goal / w, np.nan)
-        r = r * ratio
-    return r

@@ -74,7 +74,7 @@ from timespec.families.base import (
     dielectric_findings,
     part_factors,
 )
-from timespec.families.delay import rc_candidates, seconds
+from timespec.families.delay import rc_candidates
 from timespec.fmt import format_quantity
 from timespec.model import Block, Window
 from timespec.physics import relaxation
@@ -536,7 +536,8 @@ class Relaxation:
                 "note",
                 "first-cycle-longer",
                 f"after power-up the capacitor starts at 0 V, so the first high time is about "
-                f"{seconds(first)} (typical thresholds) instead of the steady one; allow for it "
+                f"{format_quantity(first, 'time')} "
+                "(typical thresholds) instead of the steady one; allow for it "
                 "if the first edges are counted.",
             )
         )
@@ -569,8 +570,10 @@ class Relaxation:
                 "thresholds-dominate" if share >= 0.5 else "threshold-share",
                 f"the gate thresholds cause {share * 100:.0f} % of the period's spread (RSS); "
                 f"alone they move the period {down:+.0f} %…{up:+.0f} % about its nominal "
-                f"{seconds(alone.nominal)} (worst case with everything: {seconds(t_lo)}…"
-                f"{seconds(t_hi)}). When the window is tighter, trim R on each board or use "
+                f"{format_quantity(alone.nominal, 'time')} "
+                f"(worst case with everything: {format_quantity(t_lo, 'time')}…"
+                f"{format_quantity(t_hi, 'time')}). "
+                "When the window is tighter, trim R on each board or use "
                 "a 555-type timer, whose thresholds come from a resistor divider.",
             )
         ]
