@@ -129,7 +129,7 @@ def _with_fixes(result: Result) -> Result:
     blocks = []
     for b in result.blocks:
         if b.verdict == "infeasible":
-            found = suggest_fixes(b.block)
+            found = suggest_fixes(b.block, solved=b)
             notes = b.notes
             if not found:
                 notes = (

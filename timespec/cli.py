@@ -164,21 +164,7 @@ def write_atomic(path: str | Path, text: str) -> None:
     UsageError
         When the folder does not exist or cannot be written.
     """
-    dest = Path(path)
-    folder = dest.parent if str(dest.parent) else Path(".")
-    if not folder.is_dir():
-        raise UsageError(f"cannot write {str(dest)!r}: folder {str(folder)!r} does not exist")
-    try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{dest.name}.", suffix=".tmp", dir=folder)
-    except OSError as exc:
-        raise UsageError(f"cannot write {str(dest)!r}: {exc.strerror}") from None
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
-            fh.write(text)
-        os.replace(tmp, dest)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
+    write_atomic_bytes(path, text.encode("utf-8"))
 
 
 def _figure_bytes(fig: object, fmt: str) -> bytes:
@@ -208,7 +194,10 @@ def write_atomic_bytes(path: str | Path, data: bytes) -> None:
     folder = dest.parent if str(dest.parent) else Path(".")
     if not folder.is_dir():
         raise UsageError(f"cannot write {str(dest)!r}: folder {str(folder)!r} does not exist")
-    fd, tmp = tempfile.mkstemp(prefix=f".{dest.name}.", suffix=".tmp", dir=folder)
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{dest.name}.", suffix=".tmp", dir=folder)
+    except OSError as exc:
+        raise UsageError(f"cannot write {str(dest)!r}: {exc.strerror}") from None
     try:
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)

@@ -766,7 +766,7 @@ def _ambient_fix(block: Block) -> Fix | None:
 # --------------------------------------------------------------------------
 
 
-def suggest_fixes(block: Block, *, limit: int = 3) -> list[Fix]:
+def suggest_fixes(block: Block, *, limit: int = 3, solved: BlockResult | None = None) -> list[Fix]:
     """The cheapest computed changes that make a block meet its requirements.
 
     Parameters
@@ -775,6 +775,9 @@ def suggest_fixes(block: Block, *, limit: int = 3) -> list[Fix]:
         A block that is infeasible (or whose pinned design fails).
     limit
         How many fixes to return at most.
+    solved
+        The block's result from :func:`timespec.solver.solve_block`, when the
+        caller has it already (it is not solved again).
 
     Returns
     -------
@@ -798,7 +801,7 @@ def suggest_fixes(block: Block, *, limit: int = 3) -> list[Fix]:
     Extreme-value worst-case analysis, common practice; costs are an ordinal
     estimate, common practice.
     """
-    base = solve_block(block)
+    base = solved if solved is not None and solved.block is block else solve_block(block)
     if base.verdict == "meets":
         return []
     changes = _design_changes(block, base.best is None)
