@@ -169,56 +169,9 @@ def worst_case(
     Extreme-value (corner) worst-case analysis, common practice in circuit tolerance
     design; monotonicity caveat as in the project reference sheet.
     """
-    if interior_points < 2:
-        raise ValueError(f"interior_points must be at least 2, got {interior_points}")
-    facs = check_factors(factors)
-    if any(f.rising or f.falling for f in facs):
-        return worst_case_many(
-            facs, evaluate, {}, interior_points=interior_points, max_points=max_points
-        )[0]
-    varying = [f for f in facs if is_varying(f)]
-    levels = [_levels(f, interior_points) for f in varying]
-    count = math.prod(len(lv) for lv in levels)
-    if count > max_points:
-        raise ValueError(
-            f"worst-case grid has {count} points, more than max_points={max_points}; "
-            "mark fewer factors monotone=False, lower interior_points or raise max_points"
-        )
-    strides = [math.prod(len(lv) for lv in levels[j + 1 :]) for j in range(len(levels))]
-
-    nominal = call_evaluate(evaluate, nominal_inputs(facs), 1)
-    trackers = {key: _Tracker(float(arr[0])) for key, arr in nominal.items()}
-    fixed = [f for f in facs if not is_varying(f)]
-
-    for start in range(0, count, _CHUNK):
-        stop = min(start + _CHUNK, count)
-        n = stop - start
-        index = np.arange(start, stop, dtype=np.int64)
-        inputs: dict[str, FloatArray] = {f.name: np.full(n, f.nominal) for f in fixed}
-        for f, lv, st in zip(varying, levels, strides, strict=True):
-            inputs[f.name] = lv[(index // st) % len(lv)]
-        outputs = call_evaluate(evaluate, inputs, n)
-        if outputs.keys() != trackers.keys():
-            raise ValueError(
-                f"evaluate returned outputs {sorted(outputs)}, expected {sorted(trackers)}"
-            )
-        for key, tracker in trackers.items():
-            tracker.update(outputs[key], start)
-
-    result: dict[str, Extremes] = {}
-    for key, t in trackers.items():
-        if t.nan_index is not None:
-            at = _point(t.nan_index, varying, levels, strides)
-            result[key] = Extremes(float(nominal[key][0]), math.nan, math.nan, at, dict(at))
-        else:
-            result[key] = Extremes(
-                nominal=float(nominal[key][0]),
-                low=t.low,
-                high=t.high,
-                low_at=_point(t.low_index, varying, levels, strides),
-                high_at=_point(t.high_index, varying, levels, strides),
-            )
-    return result
+    return worst_case_many(
+        factors, evaluate, {}, interior_points=interior_points, max_points=max_points
+    )[0]
 
 
 def worst_case_many(
