@@ -6,7 +6,7 @@ disagree on the best design.
 Scenario (our own): the status-lamp blinker of a bench power supply's front panel,
 classic circuit, E96 1 % resistors and E12 5 % C0G capacitors.
 
-* **solver** — :func:`timespec.solver.solve_block` (analytic narrowing: for each
+* **solver** — :func:`timespec.design.solver.solve_block` (analytic narrowing: for each
   capacitor the continuous resistor pair, snapped to its neighbours; full worst
   case on a shortlist).  Timed as the best of several runs.
 * **brute force** — every (RA, RB, C) triple of the allowed ranges, in numpy:
@@ -33,13 +33,14 @@ import numpy as np
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 from timespec.analysis import nominal_inputs, worst_case, worst_case_many
+from timespec.design.result import Candidate, OutputResult
+from timespec.design.solver import rank_key, solve_block
 from timespec.families.astable import Astable
-from timespec.families.base import Design, capacitor_part, resistor_part
+from timespec.families.candidates import capacitor_part, resistor_part
+from timespec.language.assemble import parse
 from timespec.model import Block
-from timespec.result import Candidate, OutputResult
-from timespec.series import values_between
-from timespec.solver import rank_key, solve_block
-from timespec.spec import parse
+from timespec.parts.part import Design
+from timespec.parts.series import values_between
 
 SPEC = """
 astable panel_blink:

@@ -18,9 +18,9 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 from timespec.analysis import worst_case
+from timespec.design.solver import solve_block
 from timespec.families import family
-from timespec.solver import solve_block
-from timespec.spec import parse
+from timespec.language.assemble import parse
 
 SPEC = """
 crystal counter_ref:

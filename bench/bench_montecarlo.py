@@ -1,7 +1,7 @@
 """Monte Carlo throughput against bare numpy, in the same run.
 
 For a one-shot (and an astable, when that family is present) this measures the
-samples per second of :func:`timespec.analyse.analyse_block` and of a bare numpy
+samples per second of :func:`timespec.design.statistics.analyse_block` and of a bare numpy
 baseline that draws the same inputs (uniform over the same ranges) and evaluates
 the same closed form, on the same number of samples, and prints the ratio.
 
@@ -22,11 +22,11 @@ from collections.abc import Callable
 
 import numpy as np
 
-from timespec.analyse import analyse_block
+from timespec.design.result import BlockResult
+from timespec.design.solver import solve_block
+from timespec.design.statistics import analyse_block
 from timespec.families import FAMILIES
-from timespec.result import BlockResult
-from timespec.solver import solve_block
-from timespec.spec import parse
+from timespec.language.assemble import parse
 
 ONESHOT = """
 oneshot burnin_slot_hold:

@@ -31,9 +31,10 @@ sys.path.insert(0, str(ROOT))
 
 import timespec  # noqa: E402
 from timespec.analysis import worst_case_many  # noqa: E402
+from timespec.design.solver import _candidate, rank_key, solve_block  # noqa: E402
 from timespec.families import family  # noqa: E402
-from timespec.families.base import Design, capacitor_part, resistor_part  # noqa: E402
-from timespec.solver import _candidate, rank_key, solve_block  # noqa: E402
+from timespec.families.candidates import capacitor_part, resistor_part  # noqa: E402
+from timespec.parts.part import Design  # noqa: E402
 
 SPEC = """
 defaults:
@@ -60,8 +61,8 @@ def best_of(fn: Callable[[], object], repeat: int) -> float:
 def brute_force(block: timespec.model.Block) -> Design:
     """Every (R, C) pair of the policies, worst case through the same engine, same ranking."""
     fam = family("oneshot")
-    rs = timespec.series.values_between("E96", block.resistors.low, block.resistors.high)
-    cs = timespec.series.values_between("E12", block.capacitors.low, block.capacitors.high)
+    rs = timespec.parts.series.values_between("E96", block.resistors.low, block.resistors.high)
+    cs = timespec.parts.series.values_between("E12", block.capacitors.low, block.capacitors.high)
     rr, cc = np.meshgrid(rs, cs, indexing="ij")
     rr, cc = rr.ravel(), cc.ravel()
     template = Design(
@@ -129,7 +130,7 @@ def bench_import() -> None:
 
 
 def bench_parse() -> None:
-    from timespec.parser import _lark
+    from timespec.language.parser import _lark
 
     lines = ["defaults:", "  supply 12 V ±5%", "  ambient -10 degC to 60 degC"]
     n_blocks = 2500

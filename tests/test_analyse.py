@@ -14,12 +14,18 @@ from hypothesis import strategies as st
 from scipy import stats
 from uncertainties import ufloat, umath
 
-from timespec.analyse import EXACT_UP_TO, analyse, analyse_block, chunk_size, terminal_progress
 from timespec.analysis import Factor, standard_uncertainty
+from timespec.design.result import BlockResult
+from timespec.design.solver import solve, solve_block
+from timespec.design.statistics import (
+    EXACT_UP_TO,
+    analyse,
+    analyse_block,
+    chunk_size,
+    terminal_progress,
+)
+from timespec.language.assemble import parse
 from timespec.model import Requirement, Window
-from timespec.result import BlockResult
-from timespec.solver import solve, solve_block
-from timespec.spec import parse
 
 SPEC = """
 defaults:

@@ -1,4 +1,4 @@
-"""Tests for timespec.dielectrics: capacitor dielectric classes and temperature drift."""
+"""Tests for timespec.parts.dielectrics: capacitor dielectric classes and temperature drift."""
 
 from __future__ import annotations
 
@@ -9,7 +9,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from timespec.dielectrics import (
+from timespec.parts.dielectrics import (
     REFERENCE_TEMPERATURE,
     RESISTOR_TCR_PPM,
     Dielectric,

@@ -13,7 +13,7 @@ from typing import Any
 
 import pytest
 
-from timespec.statements import KEYWORDS
+from timespec.language.vocabulary import KEYWORDS
 
 ROOT = Path(__file__).resolve().parent.parent
 DOCS = ROOT / "docs"
@@ -82,7 +82,7 @@ def test_language_reference_lists_every_statement(built_docs: Path) -> None:
 
 
 def test_physics_page_lists_device_marks(built_docs: Path) -> None:
-    from timespec import devices
+    from timespec.parts import devices
 
     text = _text(built_docs / "physics.html")
     for classes in (devices.TIMER_CLASSES, devices.GATE_CLASSES):
@@ -94,8 +94,8 @@ def test_physics_page_lists_device_marks(built_docs: Path) -> None:
 
 
 def test_tables_page_renders_the_demo_spec(built_docs: Path) -> None:
-    from timespec.solver import solve
-    from timespec.spec import load
+    from timespec.design.solver import solve
+    from timespec.language.assemble import load
 
     text = _text(built_docs / "tables.html")
     for header in ("Block", "Circuit", "Parts", "Required", "Nominal", "Worst case", "Verdict"):
@@ -181,13 +181,14 @@ def test_statement_rows_cover_every_keyword() -> None:
 
 
 def _public_objects() -> Iterator[tuple[str, Any]]:
-    import timespec.tables
+    import timespec.outputs.tables
 
     names = [
         (f"timespec.{n}", getattr(timespec, n)) for n in timespec.__all__ if not n.startswith("_")
     ]
     names += [
-        (f"timespec.tables.{n}", getattr(timespec.tables, n)) for n in timespec.tables.__all__
+        (f"timespec.outputs.tables.{n}", getattr(timespec.outputs.tables, n))
+        for n in timespec.outputs.tables.__all__
     ]
     try:
         import timespec.sphinxext

@@ -14,13 +14,13 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from timespec.analysis import nominal_inputs, worst_case
+from timespec.design.solver import solve_block
 from timespec.errors import SpecValueError
 from timespec.families.astable import Astable, duty_band, reachable_variants
 from timespec.families.astable_monotone import declarations
-from timespec.families.base import Design
+from timespec.language.assemble import parse
 from timespec.model import Block
-from timespec.solver import solve_block
-from timespec.spec import parse
+from timespec.parts.part import Design
 
 FAM = Astable()
 

@@ -20,10 +20,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from uncertainties import ufloat
 
-from timespec import series
 from timespec.analysis import Factor, FloatArray, is_varying, rss, worst_case
+from timespec.design.solver import evaluate_design, solve_block
 from timespec.families import family
-from timespec.families.base import Design
 from timespec.families.crystal import (
     CAP_HIGH,
     CAP_LOW,
@@ -34,10 +33,11 @@ from timespec.families.crystal import (
     declare,
     stray_window,
 )
+from timespec.language.assemble import parse
 from timespec.model import Block
+from timespec.parts import series
+from timespec.parts.part import Design
 from timespec.physics import pierce
-from timespec.solver import evaluate_design, solve_block
-from timespec.spec import parse
 
 PPM = 1e-6
 
@@ -439,7 +439,7 @@ def test_declared_monotone_factors_give_the_full_worst_case(
     # which is therefore not declared for the gain).
     import dataclasses
 
-    from timespec.families.base import capacitor_part
+    from timespec.families.candidates import capacitor_part
 
     text = COUNTER if swing else without(COUNTER, "swing")
     if "stray" in extra:

@@ -16,12 +16,14 @@ from hypothesis import strategies as st
 from scipy.integrate import solve_ivp
 
 from timespec.analysis import Factor, worst_case
+from timespec.design.solver import evaluate_design, solve_block
 from timespec.families import family
-from timespec.families.base import Design, FloatArray, capacitor_part, resistor_part
+from timespec.families.candidates import capacitor_part, resistor_part
 from timespec.families.delay import Delay, aim_nominal
+from timespec.families.protocol import FloatArray
+from timespec.language.assemble import parse
 from timespec.model import Block, Window
-from timespec.solver import evaluate_design, solve_block
-from timespec.spec import parse
+from timespec.parts.part import Design
 
 RACK = """
 delay slot_reset:

@@ -11,9 +11,10 @@ from hypothesis import strategies as st
 
 import timespec
 from timespec.analysis import nominal_inputs
+from timespec.design.solver import evaluate_design, rank_key, solve_block
 from timespec.families import family
-from timespec.families.base import Design, capacitor_part, resistor_part
-from timespec.solver import evaluate_design, rank_key, solve_block
+from timespec.families.candidates import capacitor_part, resistor_part
+from timespec.parts.part import Design
 
 SPEC = """
 defaults:
@@ -43,8 +44,8 @@ def test_solved_design_meets_and_is_standard() -> None:
     assert res.mode == "solved"
     r, c = res.best.design.part("R"), res.best.design.part("C")  # type: ignore[union-attr]
     # IEC 60063: chosen values are members of the policy's series.
-    assert timespec.series.is_member("E96", r.value)
-    assert timespec.series.is_member("E12", c.value)
+    assert timespec.parts.series.is_member("E96", r.value)
+    assert timespec.parts.series.is_member("E12", c.value)
     out = res.best.output("width")  # type: ignore[union-attr]
     assert 0.138 <= out.low <= out.nominal <= out.high <= 0.162
 
@@ -207,8 +208,8 @@ def test_solver_agrees_with_brute_force_on_all_pairs() -> None:
     blk = block(text)
     res = solve_block(blk)
     assert res.best is not None
-    rs = timespec.series.values_between("E96", 100e3, 1e6)
-    cs = timespec.series.values_between("E12", 100e-9, 470e-9)
+    rs = timespec.parts.series.values_between("E96", 100e3, 1e6)
+    cs = timespec.parts.series.values_between("E12", 100e-9, 470e-9)
     every = [
         evaluate_design(
             blk,
@@ -243,7 +244,7 @@ def test_control_voltage_sets_the_threshold() -> None:
 def test_electrolytic_leakage_enters_the_worst_case() -> None:
     # Aluminium electrolytic datasheets (generic class): leakage up to 0.01·C·V µA or 3 µA,
     # whichever is greater; timespec adds it to the timing node without being told.
-    from timespec.families.base import capacitor_leakage
+    from timespec.families.capacitors import capacitor_leakage
 
     blk = block(SPEC.replace("capacitors E12 2% PP, 10n to 1u", "capacitors E6 20% AL, 1u to 100u"))
     c = capacitor_part("C", 10e-6, blk.capacitors)

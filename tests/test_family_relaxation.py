@@ -3,7 +3,7 @@
 Outside sources: the Schmitt-inverter oscillator relation for a rail-to-rail output,
 ``T = R·C·[ln(VT+/VT−) + ln((V − VT−)/(V − VT+))]``, which follows from the first-order
 RC charge and discharge laws (any circuit-theory handbook); threshold bands are the
-generic device-class datasheet figures recorded in ``timespec.devices``.
+generic device-class datasheet figures recorded in ``timespec.parts.devices``.
 Scenario: the status blinker and a ticking clock of a bench instrument (our own invention).
 """
 
@@ -17,13 +17,16 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from timespec.analysis import Factor, worst_case
+from timespec.design.solver import evaluate_design, solve_block
 from timespec.families import family
-from timespec.families.base import Design, FloatArray, apply_part, capacitor_part, resistor_part
+from timespec.families.candidates import capacitor_part, resistor_part
+from timespec.families.inputs import apply_part
+from timespec.families.protocol import FloatArray
 from timespec.families.relaxation import Relaxation, thresholds, width_knots
+from timespec.language.assemble import parse
 from timespec.model import Block
+from timespec.parts.part import Design
 from timespec.physics import relaxation as rx
-from timespec.solver import evaluate_design, solve_block
-from timespec.spec import parse
 
 BENCH = """
 relaxation status_tick:
@@ -121,7 +124,7 @@ def test_registered() -> None:
 def test_nominal_is_schmitt_oscillator_relation(gate: str, p: float, m: float) -> None:
     # Schmitt-inverter oscillator, rail-to-rail output (first-order RC laws, any
     # circuit-theory handbook): tH = RC·ln((1 − m)/(1 − p)), tL = RC·ln(p/m) with the
-    # thresholds p, m as shares of the supply (typical class values, timespec.devices [DS]).
+    # thresholds p, m as shares of the supply (typical class values, timespec.parts.devices [DS]).
     blk = block_of(BENCH.replace("supply 5 V ±5%", "supply 5 V ±5%\n  gate " + gate))
     r, c = 47e3, 10e-9
     got = nominal(blk, r, c)
@@ -237,7 +240,7 @@ def test_pinned_is_checked_not_chosen() -> None:
 
 
 def test_frequency_above_class_limit_is_an_error() -> None:
-    # metal-gate class: f_max 1 MHz [Mem, timespec.devices]; 10 kΩ · 100 pF runs above it
+    # metal-gate class: f_max 1 MHz [Mem, timespec.parts.devices]; 10 kΩ · 100 pF runs above it
     blk = block_of(
         "relaxation fast:\n supply 5 V\n gate metalgate\n frequency 1 MHz ±50%\n"
         " use R 10k, C 100p\n"

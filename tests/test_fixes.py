@@ -5,11 +5,11 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
+from timespec.design.fixes import COSTS, Fix, suggest_fixes, tightest_window, trim_design
+from timespec.design.solver import solve_block
 from timespec.families import family
-from timespec.fixes import COSTS, Fix, suggest_fixes, tightest_window, trim_design
+from timespec.language.assemble import parse
 from timespec.model import Block
-from timespec.solver import solve_block
-from timespec.spec import parse
 
 SPEC = """
 defaults:

@@ -12,7 +12,7 @@ from hypothesis import strategies as st
 import timespec
 from timespec.cli import main
 from timespec.errors import SpecSyntaxError
-from timespec.layout import layout
+from timespec.language.canonical import layout
 
 ROOT = Path(__file__).resolve().parent.parent
 

@@ -10,7 +10,7 @@ import pytest
 
 import timespec
 from timespec.cli import main
-from timespec.limits import fixture_limits, measurement_uncertainty
+from timespec.design.limits import fixture_limits, measurement_uncertainty
 from timespec.model import Fixture
 
 SPEC = """

@@ -8,11 +8,11 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from timespec import series
-from timespec.families.base import neighbour_parts, pair_part
+from timespec.design.solver import rank_key, solve_block
+from timespec.families.candidates import neighbour_parts, pair_part
+from timespec.language.assemble import parse
 from timespec.model import CapacitorPolicy, ResistorPolicy
-from timespec.solver import rank_key, solve_block
-from timespec.spec import parse
+from timespec.parts import series
 
 E24 = series.values_between("E24", 1e3, 1e6)
 

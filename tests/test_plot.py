@@ -9,7 +9,7 @@ import pytest
 
 import timespec
 from timespec.cli import main
-from timespec.plot import margin_rows
+from timespec.outputs.plot import margin_rows
 
 ROOT = Path(__file__).resolve().parent.parent
 DEMO = ROOT / "examples" / "bench_instrument.tspec"

@@ -1,4 +1,4 @@
-"""Tests for timespec.rkm: IEC 60062 RKM codes and tolerance letters."""
+"""Tests for timespec.parts.rkm: IEC 60062 RKM codes and tolerance letters."""
 
 from __future__ import annotations
 
@@ -8,7 +8,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from timespec.rkm import (
+from timespec.parts.rkm import (
     TOLERANCE_LETTERS,
     format_rkm,
     looks_like_rkm,

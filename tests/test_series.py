@@ -1,4 +1,4 @@
-"""Tests for timespec.series: IEC 60063 preferred number series."""
+"""Tests for timespec.parts.series: IEC 60063 preferred number series."""
 
 from __future__ import annotations
 
@@ -10,7 +10,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from timespec import series as es
+from timespec.parts import series as es
 
 # ---------------------------------------------------------------------------------------------
 # Published tables, typed out as integers (IEC 60063:2015, tables 1 to 3: "preferred number

@@ -1,4 +1,4 @@
-"""Tests for timespec.tables: part-value tables in Markdown, reST and CSV."""
+"""Tests for timespec.outputs.tables: part-value tables in Markdown, reST and CSV."""
 
 from __future__ import annotations
 
@@ -10,8 +10,10 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from timespec.design.result import BlockResult, Candidate, OutputResult, Result
 from timespec.errors import UsageError
-from timespec.families.base import Design, Finding, Part
+from timespec.families.protocol import Finding
+from timespec.language.assemble import parse
 from timespec.model import (
     Block,
     CapacitorPolicy,
@@ -21,9 +23,7 @@ from timespec.model import (
     Spec,
     Window,
 )
-from timespec.result import BlockResult, Candidate, OutputResult, Result
-from timespec.spec import parse
-from timespec.tables import (
+from timespec.outputs.tables import (
     HEADERS,
     JOIN,
     format_part,
@@ -32,6 +32,7 @@ from timespec.tables import (
     render_table,
     table_cells,
 )
+from timespec.parts.part import Design, Part
 from timespec.units import unit_info
 
 SPEC = """
@@ -55,7 +56,7 @@ oneshot heater_rest: width 300 us min
 
 @pytest.fixture(scope="module")
 def solved() -> Result:
-    from timespec.solver import solve
+    from timespec.design.solver import solve
 
     return solve(parse(SPEC, "demo.tspec"))
 

@@ -47,7 +47,7 @@ def test_wheel_parses_a_spec_without_the_source_tree(wheel: Path, tmp_path: Path
     zipfile.ZipFile(wheel).extractall(site)
     code = (
         "import sys; sys.path.insert(0, sys.argv[1]);"
-        "import timespec, timespec.parser as p;"
+        "import timespec, timespec.language.parser as p;"
         "assert timespec.__file__.startswith(sys.argv[1]), timespec.__file__;"
         "s = timespec.parse('oneshot a: width 150 ms ±8% at supply 12 V ±5%');"
         "print(s.blocks[0].requirement('width').window.high)"

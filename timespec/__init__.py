@@ -36,19 +36,19 @@ __all__ = [
 
 if TYPE_CHECKING:  # pragma: no cover
     from timespec.api import load, parse, solve
+    from timespec.design.limits import fixture_limits
+    from timespec.design.result import Result
     from timespec.errors import SpecError
-    from timespec.limits import fixture_limits
     from timespec.model import Spec
-    from timespec.result import Result
 
 _LAZY = {
     "load": "timespec.api",
     "parse": "timespec.api",
     "solve": "timespec.api",
     "SpecError": "timespec.errors",
-    "fixture_limits": "timespec.limits",
+    "fixture_limits": "timespec.design.limits",
     "Spec": "timespec.model",
-    "Result": "timespec.result",
+    "Result": "timespec.design.result",
 }
 
 

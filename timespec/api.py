@@ -1,7 +1,7 @@
 """The documented Python API: parse or load a spec, solve it.
 
 These three functions are what another tool (a fixture-firmware generator, a
-docs build) calls.  Results are :class:`~timespec.result.Result` objects; their
+docs build) calls.  Results are :class:`~timespec.design.result.Result` objects; their
 ``quantities()`` and ``part_values()`` methods hand back pint quantities.
 """
 
@@ -10,10 +10,10 @@ from __future__ import annotations
 from collections.abc import Callable
 from pathlib import Path
 
-from timespec import spec as _spec
+from timespec.design.result import Result
 from timespec.errors import UsageError
+from timespec.language import assemble as _spec
 from timespec.model import Spec
-from timespec.result import Result
 
 __all__ = ["load", "parse", "solve"]
 
@@ -107,11 +107,11 @@ def solve(
         raise UsageError("samples must be at least 1")
     if seed is not None and seed < 0:
         raise UsageError("seed must not be negative")
-    from timespec.solver import solve as _solve
+    from timespec.design.solver import solve as _solve
 
     result = _solve(spec)
     if statistics:
-        from timespec.analyse import analyse
+        from timespec.design.statistics import analyse
 
         result = analyse(result, samples=samples, seed=seed, progress=progress)
     if fixes:
@@ -124,7 +124,7 @@ def _with_fixes(result: Result) -> Result:
 
     if all(b.verdict != "infeasible" for b in result.blocks):
         return result
-    from timespec.fixes import suggest_fixes
+    from timespec.design.fixes import suggest_fixes
 
     blocks = []
     for b in result.blocks:

@@ -215,13 +215,13 @@ def _emit(text: str, output: str | None, stdout: TextIO) -> None:
 
 
 def _progress(stream: TextIO) -> object | None:
-    from timespec.analyse import terminal_progress
+    from timespec.design.statistics import terminal_progress
 
     return terminal_progress(stream)
 
 
 def _format(args: argparse.Namespace, stdout: TextIO) -> int:
-    from timespec.layout import layout_file
+    from timespec.language.canonical import layout_file
 
     done = [(path, *layout_file(path)) for path in args.specs]  # read all before writing any
     changed = [path for path, before, after in done if before != after]
@@ -246,8 +246,8 @@ def _run(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     if args.command == "format":
         return _format(args, stdout)
     spec = api.load(args.spec)
-    from timespec.jsonout import result_to_json
-    from timespec.report import render_check, render_report
+    from timespec.outputs.jsondoc import result_to_json
+    from timespec.outputs.report import render_check, render_report
 
     if args.command == "solve":
         progress = None if args.no_statistics else _progress(stderr)
@@ -267,7 +267,7 @@ def _run(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     if args.command == "limits":
         import json
 
-        from timespec.limits import fixture_limits, limits_to_dict, render_limits
+        from timespec.design.limits import fixture_limits, limits_to_dict, render_limits
 
         if spec.fixture is None:
             raise UsageError(
@@ -284,7 +284,7 @@ def _run(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
         _emit(text, args.output, stdout)
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "plot":
-        from timespec.plot import margin_chart
+        from timespec.outputs.plot import margin_chart
 
         suffix = Path(args.output).suffix.lower()
         if suffix not in (".png", ".svg", ".pdf"):
@@ -297,7 +297,7 @@ def _run(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
         stdout.write(f"wrote {args.output}\n")
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "table":
-        from timespec.tables import render_table
+        from timespec.outputs.tables import render_table
 
         result = api.solve(spec, statistics=False, fixes=False)
         _emit(render_table(result, args.format), args.output, stdout)

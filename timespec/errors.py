@@ -8,7 +8,10 @@ hint where one helps.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 __all__ = [
+    "Pos",
     "SpecError",
     "SpecIncludeError",
     "SpecSyntaxError",
@@ -16,6 +19,26 @@ __all__ = [
     "SpecValueError",
     "UsageError",
 ]
+
+
+@dataclass(frozen=True)
+class Pos:
+    """Where a piece of text stands.
+
+    Attributes
+    ----------
+    path
+        The file, or ``None`` for text given directly.
+    line, column
+        1-based position of the first character.
+    source_line
+        The whole line, for the caret display.
+    """
+
+    path: str | None
+    line: int
+    column: int
+    source_line: str
 
 
 class SpecError(ValueError):

@@ -12,8 +12,8 @@ import math
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 
-from timespec.devices import GateClass, TimerClass
-from timespec.values import Pos
+from timespec.errors import Pos
+from timespec.parts.devices import GateClass, TimerClass
 
 __all__ = [
     "BLOCK_KINDS",

@@ -5,7 +5,7 @@ directives:
 
 ``.. timespec-table:: path/to/board.tspec``
     Loads the spec (path relative to the document), solves it and puts its
-    part-value table (:func:`timespec.tables.render_table`) in the page.
+    part-value table (:func:`timespec.outputs.tables.render_table`) in the page.
     Options: ``:blocks:`` (block names, separated by commas or spaces, in the
     order to show) and ``:title:``.  The spec file and every file it includes
     become dependencies of the page, so editing the spec rebuilds it.  A
@@ -13,14 +13,14 @@ directives:
     ``file:line`` (so ``sphinx-build -W`` fails), never as a traceback.
 
 ``.. timespec-statements::``
-    The statement vocabulary, generated from :data:`timespec.statements.KEYWORDS`
+    The statement vocabulary, generated from :data:`timespec.language.statements.KEYWORDS`
     so the language reference never drifts from the parser.  Options:
     ``:kinds:`` (block kinds to list statements for) and ``:only:`` (only the
     statements no other block kind takes).
 
 ``.. timespec-devices::``
     The parameters of the generic timer and Schmitt-inverter classes
-    (:mod:`timespec.devices`) with the source mark of each value (``[DS]``,
+    (:mod:`timespec.parts.devices`) with the source mark of each value (``[DS]``,
     ``[CP]``, ``[Mem]``) read from the module.
 """
 
@@ -39,13 +39,13 @@ from docutils.statemachine import StringList
 from sphinx.util import logging
 from sphinx.util.docutils import SphinxDirective
 
-from timespec import devices
+from timespec.design.result import Result
 from timespec.errors import SpecError
-from timespec.fmt import format_quantity
+from timespec.language.vocabulary import KEYWORDS, Keyword
 from timespec.model import BLOCK_KINDS, Spec
-from timespec.result import Result
-from timespec.statements import KEYWORDS, Keyword
-from timespec.tables import render_table
+from timespec.numbers import format_quantity
+from timespec.outputs.tables import render_table
+from timespec.parts import devices
 
 __all__ = [
     "DevicesDirective",
@@ -169,8 +169,8 @@ class TableDirective(_ParsingDirective):
             The table, or nothing when the spec has a mistake (a warning is
             logged at the spec's file and line instead).
         """
-        from timespec.solver import solve_block
-        from timespec.spec import load
+        from timespec.design.solver import solve_block
+        from timespec.language.assemble import load
 
         rel, abs_path = self.env.relfn2path(self.arguments[0], self.env.docname)
         path = Path(abs_path)
@@ -320,7 +320,7 @@ _FIELD_FORMS: dict[str, str] = {
 
 
 def _source_marks() -> dict[tuple[str, str], tuple[str, str]]:
-    """(class name, field) -> (marks, note) from the comments in :mod:`timespec.devices`."""
+    """(class name, field) -> (marks, note) from the comments in :mod:`timespec.parts.devices`."""
     out: dict[tuple[str, str], tuple[str, str]] = {}
     current = ""
     for line in inspect.getsource(devices).splitlines():
@@ -362,7 +362,7 @@ def device_rows() -> list[tuple[str, ...]]:
     list of tuple of str
         One row per parameter of every timer and Schmitt-inverter class, as
         reST inline text; the mark is ``[DS]``, ``[CP]`` or ``[Mem]`` as
-        written beside the value in :mod:`timespec.devices`.
+        written beside the value in :mod:`timespec.parts.devices`.
     """
     marks = _source_marks()
     rows: list[tuple[str, ...]] = []

@@ -42,34 +42,24 @@ import numpy as np
 from timespec.analysis import Factor, worst_case
 from timespec.errors import SpecValueError
 from timespec.families.astable_monotone import declared
-from timespec.families.base import (
-    Design,
-    Evaluate,
-    Finding,
-    FloatArray,
-    Inputs,
-    Output,
-    Part,
+from timespec.families.candidates import candidate_values, capacitor_part, resistor_part, snap
+from timespec.families.capacitors import dielectric_findings, node_leakage
+from timespec.families.goals import target, window_score
+from timespec.families.inputs import (
     apply_part,
-    candidate_values,
-    capacitor_part,
     condition_factors,
-    dielectric_findings,
     drain_current,
-    node_leakage,
     part_factors,
-    resistor_part,
     scaled_time,
-    snap,
     supply_nominal_factor,
-    target,
     timer_factors,
-    window_score,
 )
-from timespec.fmt import format_quantity
+from timespec.families.protocol import Evaluate, Finding, FloatArray, Inputs, Output
 from timespec.model import Block, PinnedPart, Window
+from timespec.numbers import format_quantity
+from timespec.parts.part import Design, Part
+from timespec.parts.rkm import format_rkm
 from timespec.physics import astable
-from timespec.rkm import format_rkm
 
 __all__ = [
     "DEFAULT_DUTY",

@@ -15,7 +15,7 @@ import math
 from collections.abc import Mapping
 
 from timespec.analysis import Factor, is_varying
-from timespec.families.base import REFERENCE_C
+from timespec.families.inputs import REFERENCE_C
 
 __all__ = ["ALWAYS", "GUARDED", "PAYS", "RATIO_GUARDED", "declarations", "declared"]
 

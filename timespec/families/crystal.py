@@ -44,23 +44,14 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from timespec import series
 from timespec.analysis import Factor, is_varying, rss, worst_case
-from timespec.families.base import (
-    Design,
-    Evaluate,
-    Finding,
-    FloatArray,
-    Inputs,
-    Output,
-    Part,
-    apply_part,
-    capacitor_part,
-    condition_factors,
-    dielectric_findings,
-    part_factors,
-)
+from timespec.families.candidates import capacitor_part
+from timespec.families.capacitors import dielectric_findings
+from timespec.families.inputs import apply_part, condition_factors, part_factors
+from timespec.families.protocol import Evaluate, Finding, FloatArray, Inputs, Output
 from timespec.model import Block, CapacitorPolicy, Window
+from timespec.parts import series
+from timespec.parts.part import Design, Part
 from timespec.physics import pierce
 
 __all__ = [

@@ -30,30 +30,16 @@ from collections.abc import Mapping
 import numpy as np
 
 from timespec.analysis import Factor, nominal_inputs, worst_case
-from timespec.families.base import (
-    Design,
-    Evaluate,
-    Family,
-    Finding,
-    FloatArray,
-    Inputs,
-    Output,
-    apply_part,
-    candidate_values,
-    capacitor_part,
-    condition_factors,
-    declare_monotone,
-    dielectric_findings,
-    node_leakage,
-    part_factors,
-    resistor_part,
-    scale_to_goal,
-    snap,
-)
-from timespec.fmt import format_quantity
+from timespec.families.candidates import candidate_values, capacitor_part, resistor_part, snap
+from timespec.families.capacitors import dielectric_findings, node_leakage
+from timespec.families.goals import declare_monotone, scale_to_goal
+from timespec.families.inputs import apply_part, condition_factors, part_factors
+from timespec.families.protocol import Evaluate, Family, Finding, FloatArray, Inputs, Output
 from timespec.model import Block, Window
+from timespec.numbers import format_quantity
+from timespec.parts.part import Design
+from timespec.parts.rkm import format_rkm
 from timespec.physics import rcdelay
-from timespec.rkm import format_rkm
 
 __all__ = [
     "DELAY_RISING_ALWAYS",

@@ -18,35 +18,30 @@ from collections.abc import Mapping
 import numpy as np
 
 from timespec.analysis import Factor
-from timespec.families.base import (
-    Design,
-    Evaluate,
-    Finding,
-    FloatArray,
-    Inputs,
-    Output,
-    apply_part,
+from timespec.families.candidates import (
     candidate_values,
     capacitor_part,
-    condition_factors,
-    declare_monotone,
-    dielectric_findings,
-    drain_current,
     neighbour_parts,
     neighbour_parts_many,
-    node_leakage,
-    part_factors,
     resistor_part,
-    scale_to_goal,
+)
+from timespec.families.capacitors import dielectric_findings, node_leakage
+from timespec.families.goals import declare_monotone, scale_to_goal, target
+from timespec.families.inputs import (
+    apply_part,
+    condition_factors,
+    drain_current,
+    part_factors,
     scaled_time,
     supply_nominal_factor,
-    target,
     timer_factors,
 )
-from timespec.fmt import format_quantity
+from timespec.families.protocol import Evaluate, Finding, FloatArray, Inputs, Output
 from timespec.model import Block
+from timespec.numbers import format_quantity
+from timespec.parts.part import Design
+from timespec.parts.rkm import format_rkm
 from timespec.physics import monostable
-from timespec.rkm import format_rkm
 
 __all__ = ["OneShot"]
 
@@ -173,7 +168,7 @@ class OneShot:
         with the full nominal model (drain and on-resistance), then both
         standard neighbours are kept (and, when the policy allows pairs, the
         nearest series/parallel pairs between them, see
-        :func:`~timespec.families.base.neighbour_parts`).  If R is pinned, the
+        :func:`~timespec.families.candidates.neighbour_parts`).  If R is pinned, the
         same is done for C.
         """
         req = block.requirement("width")

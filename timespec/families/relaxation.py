@@ -62,23 +62,15 @@ from dataclasses import dataclass
 import numpy as np
 
 from timespec.analysis import Factor, grouped_shares, rss, worst_case
-from timespec.families.base import (
-    Design,
-    Evaluate,
-    Finding,
-    FloatArray,
-    Inputs,
-    Output,
-    apply_part,
-    condition_factors,
-    dielectric_findings,
-    part_factors,
-)
+from timespec.families.capacitors import dielectric_findings
 from timespec.families.delay import rc_candidates
-from timespec.fmt import format_quantity
+from timespec.families.inputs import apply_part, condition_factors, part_factors
+from timespec.families.protocol import Evaluate, Finding, FloatArray, Inputs, Output
 from timespec.model import Block, Window
+from timespec.numbers import format_quantity
+from timespec.parts.part import Design
+from timespec.parts.rkm import format_rkm
 from timespec.physics import relaxation
-from timespec.rkm import format_rkm
 
 __all__ = ["Relaxation", "Thresholds", "thresholds", "width_knots"]
 

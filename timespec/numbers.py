@@ -10,11 +10,11 @@ import math
 from collections.abc import Iterable
 from typing import TYPE_CHECKING, Literal
 
-from timespec.rkm import format_rkm
+from timespec.parts.rkm import format_rkm
 
 if TYPE_CHECKING:  # pragma: no cover
-    from timespec.families.base import Part
     from timespec.model import Window
+    from timespec.parts.part import Part
 
 __all__ = [
     "PPM_OUTPUTS",

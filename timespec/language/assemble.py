@@ -14,8 +14,11 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from timespec.devices import GATE_CLASSES, TIMER_CLASSES, TimerClass
-from timespec.errors import SpecError, SpecIncludeError, SpecValueError
+from timespec.errors import Pos, SpecError, SpecIncludeError, SpecValueError
+from timespec.language.parser import Entry, Header, Statement, parse_entries
+from timespec.language.statements import did_you_mean, error_at, read_statement
+from timespec.language.values import Text
+from timespec.language.vocabulary import KEYWORDS
 from timespec.model import (
     BLOCK_KINDS,
     Block,
@@ -29,9 +32,7 @@ from timespec.model import (
     Statistics,
     Window,
 )
-from timespec.parser import Entry, Header, Statement, parse_entries
-from timespec.statements import KEYWORDS, did_you_mean, error_at, read_statement
-from timespec.values import Pos, Text
+from timespec.parts.devices import GATE_CLASSES, TIMER_CLASSES, TimerClass
 
 __all__ = ["DEFAULT_TIMER", "PART_REFS", "REQUIRED", "load", "parse"]
 

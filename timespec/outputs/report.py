@@ -15,7 +15,8 @@ from typing import Literal
 
 from timespec import __version__
 from timespec.analysis import RssResult
-from timespec.fmt import (
+from timespec.design.result import BlockResult, Candidate, OutputResult, Result
+from timespec.numbers import (
     format_interval,
     format_part,
     format_part_value,
@@ -23,7 +24,6 @@ from timespec.fmt import (
     format_window,
     ratio_unit,
 )
-from timespec.result import BlockResult, Candidate, OutputResult, Result
 
 __all__ = ["ratio_of", "render_block", "render_check", "render_report"]
 

@@ -27,7 +27,6 @@ from collections import defaultdict
 
 import numpy as np
 
-from timespec import series as eseries
 from timespec.analysis import (
     Extremes,
     Factor,
@@ -37,10 +36,13 @@ from timespec.analysis import (
     worst_case,
     worst_case_many,
 )
+from timespec.design.result import BlockResult, Candidate, OutputResult, Result
 from timespec.families import family
-from timespec.families.base import Design, Family, window_score
+from timespec.families.goals import window_score
+from timespec.families.protocol import Family
 from timespec.model import Block, Spec
-from timespec.result import BlockResult, Candidate, OutputResult, Result
+from timespec.parts import series as eseries
+from timespec.parts.part import Design
 
 __all__ = ["SHORTLIST", "evaluate_design", "rank_key", "solve", "solve_block"]
 
@@ -411,6 +413,6 @@ def solve(spec: Spec) -> Result:
     Returns
     -------
     Result
-        One :class:`~timespec.result.BlockResult` per block.
+        One :class:`~timespec.design.result.BlockResult` per block.
     """
     return Result(spec, tuple(solve_block(b) for b in spec.blocks))

@@ -9,10 +9,11 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from timespec.errors import Pos
+
 __all__ = [
     "Bound",
     "Fraction",
-    "Pos",
     "Quantity",
     "Range",
     "Term",
@@ -21,26 +22,6 @@ __all__ = [
     "Toleranced",
     "Word",
 ]
-
-
-@dataclass(frozen=True)
-class Pos:
-    """Where a piece of text stands.
-
-    Attributes
-    ----------
-    path
-        The file, or ``None`` for text given directly.
-    line, column
-        1-based position of the first character.
-    source_line
-        The whole line, for the caret display.
-    """
-
-    path: str | None
-    line: int
-    column: int
-    source_line: str
 
 
 @dataclass(frozen=True)

@@ -23,7 +23,7 @@ spec switches to a normal distribution whose standard deviation is the
 tolerance divided by the stated number of sigmas, truncated at the tolerance
 (out-of-tolerance parts do not ship); 3 sigma is the usual reading of a
 tolerance as a process limit (common practice).  The choice reaches the factors
-through ``block.statistics`` (see :func:`timespec.families.base.part_factors`);
+through ``block.statistics`` (see :func:`timespec.families.inputs.part_factors`);
 operating conditions (ambient, supply) are always uniform over their range, so
 the yield is over units *and* operating points.
 """
@@ -38,8 +38,8 @@ from typing import TextIO
 import numpy as np
 
 from timespec.analysis import monte_carlo, rss
+from timespec.design.result import BlockResult, Result
 from timespec.families import family
-from timespec.result import BlockResult, Result
 
 __all__ = [
     "CHUNK",
@@ -115,7 +115,7 @@ def analyse_block(
     Parameters
     ----------
     result
-        The block as solved or checked by :func:`timespec.solver.solve_block`.
+        The block as solved or checked by :func:`timespec.design.solver.solve_block`.
     samples
         Monte Carlo sample count; ``None`` takes the spec's (``samples`` statement,
         default 20 000).
@@ -193,7 +193,7 @@ def analyse(
     Parameters
     ----------
     result
-        From :func:`timespec.solver.solve`.
+        From :func:`timespec.design.solver.solve`.
     samples, seed
         Override every block's Monte Carlo settings (``None``: each block's own).
     progress

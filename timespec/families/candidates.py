@@ -1,28 +1,23 @@
-"""Parts and designs: standard values from the policies, snapped, paired or pinned.
+"""Candidate parts: standard values from the policies, snapped, paired or pinned.
 
-A :class:`Part` is one resistor or capacitor with everything the analysis needs
-(value, tolerance, tempco or dielectric, ageing, whether the spec pinned it,
-and for a series/parallel pair its two values); a :class:`Design` is a set of
-parts and a circuit variant.  The builders here take values from the block's
-policies (IEC 60063 series and ranges) so that every family picks parts the
-same way.
+The builders here turn a block's policies (IEC 60063 series and ranges) and
+pinned parts into :class:`~timespec.parts.part.Part` objects, so that every
+family picks parts the same way.
 """
 
 from __future__ import annotations
 
 import dataclasses
 import math
-from dataclasses import dataclass
 
 import numpy as np
 import numpy.typing as npt
 
-from timespec import series
 from timespec.model import CapacitorPolicy, PinnedPart, ResistorPolicy
+from timespec.parts import series
+from timespec.parts.part import Part
 
 __all__ = [
-    "Design",
-    "Part",
     "candidate_values",
     "capacitor_part",
     "neighbour_parts",
@@ -33,92 +28,6 @@ __all__ = [
 ]
 
 FloatArray = npt.NDArray[np.float64]
-
-
-@dataclass(frozen=True)
-class Part:
-    """One chosen or pinned part.
-
-    Attributes
-    ----------
-    ref
-        Reference in the circuit (``R``, ``C``, ``RA`` ...).
-    kind
-        ``"resistance"`` or ``"capacitance"``.
-    value
-        Ω or F.
-    tolerance
-        Relative tolerance.
-    series
-        IEC 60063 series it comes from, or ``None`` for an off-series pinned value.
-    tempco_ppm
-        Resistor tempco bound (±ppm/K), ``None`` for capacitors.
-    dielectric
-        Capacitor dielectric, ``None`` for resistors.
-    pinned
-        Whether the spec fixed it.
-    ageing
-        Relative drift per year bound.
-    pair
-        ``(a, b, how)`` when the part is two standard values ``a <= b`` joined in
-        ``"series"`` or ``"parallel"`` (``value`` is then the combined value and
-        ``tolerance`` the pair's worst-case tolerance); ``None`` for a single part.
-    """
-
-    ref: str
-    kind: str
-    value: float
-    tolerance: float
-    series: str | None
-    tempco_ppm: float | None = None
-    dielectric: str | None = None
-    pinned: bool = False
-    ageing: float = 0.0
-    pair: tuple[float, float, str] | None = None
-
-    @property
-    def count(self) -> int:
-        """How many physical parts this stands for (2 for a pair)."""
-        return 1 if self.pair is None else 2
-
-
-@dataclass(frozen=True)
-class Design:
-    """A set of parts (and a circuit variant, where the family has several).
-
-    Attributes
-    ----------
-    parts
-        The parts, in the family's order.
-    variant
-        Circuit variant, e.g. ``"diode"`` for an astable; empty when there is one.
-    """
-
-    parts: tuple[Part, ...]
-    variant: str = ""
-
-    def part(self, ref: str) -> Part:
-        """Return the part with this reference.
-
-        Parameters
-        ----------
-        ref
-            Part reference.
-
-        Returns
-        -------
-        Part
-            The part.
-
-        Raises
-        ------
-        KeyError
-            When the design has no such part.
-        """
-        for p in self.parts:
-            if p.ref == ref:
-                return p
-        raise KeyError(ref)
 
 
 def resistor_part(
@@ -290,7 +199,7 @@ def pair_part(
     Notes
     -----
     Series ``a + b``, parallel ``a·b/(a + b)``; the worst-case tolerance comes from
-    :func:`timespec.series.pair_tolerance` (equal to the parts' tolerance when both
+    :func:`timespec.parts.series.pair_tolerance` (equal to the parts' tolerance when both
     share it).  Both combinations are weighted means of the parts' relative changes
     (by value in series, by conductance in parallel for resistors; the reverse for
     capacitors), so a common tempco band, dielectric drift or ageing bound applies
@@ -364,7 +273,7 @@ def neighbour_parts(ref: str, x: float, policy: ResistorPolicy | CapacitorPolicy
 
     Notes
     -----
-    Pairs come from :func:`timespec.series.pair_table` (larger/smaller part ratio at
+    Pairs come from :func:`timespec.parts.series.pair_table` (larger/smaller part ratio at
     most 10) restricted to the gap between the single neighbours, so the table stays
     small; a pair that equals a single standard value is dropped.
 

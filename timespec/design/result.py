@@ -12,8 +12,9 @@ from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any
 
 from timespec.analysis import Factor, MonteCarloResult, RssResult
-from timespec.families.base import Design, Finding, Part
+from timespec.families.protocol import Finding
 from timespec.model import Block, Spec, Window
+from timespec.parts.part import Design, Part
 from timespec.units import quantity
 
 if TYPE_CHECKING:  # pragma: no cover

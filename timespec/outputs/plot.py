@@ -17,8 +17,8 @@ import math
 from dataclasses import dataclass
 from typing import Any
 
+from timespec.design.result import Result
 from timespec.errors import UsageError
-from timespec.result import Result
 
 __all__ = ["MarginRow", "margin_chart", "margin_rows"]
 

@@ -2,9 +2,9 @@
 
 The grammar (``grammar/timespec.lark``) is loaded once, lazily.  The lark tree
 is turned into :class:`Header` and :class:`Statement` entries whose arguments
-are the value classes of :mod:`timespec.values`.  Meaning — which statement
+are the value classes of :mod:`timespec.language.values`.  Meaning — which statement
 belongs where and what its values stand for — is the business of
-:mod:`timespec.statements`; this module only reads.
+:mod:`timespec.language.statements`; this module only reads.
 
 Every failure leaves as a :class:`~timespec.errors.SpecError` subclass with the
 file, line, column, the line itself and a hint.  No lark or pint exception
@@ -30,13 +30,10 @@ from lark.exceptions import (
     VisitError,
 )
 
-from timespec.errors import SpecError, SpecSyntaxError, SpecUnitError
-from timespec.rkm import parse_rkm
-from timespec.units import unit_info
-from timespec.values import (
+from timespec.errors import Pos, SpecError, SpecSyntaxError, SpecUnitError
+from timespec.language.values import (
     Bound,
     Fraction,
-    Pos,
     Quantity,
     Range,
     Term,
@@ -45,6 +42,9 @@ from timespec.values import (
     Toleranced,
     Word,
 )
+from timespec.language.vocabulary import KEYWORDS
+from timespec.parts.rkm import parse_rkm
+from timespec.units import unit_info
 
 __all__ = ["Entry", "Header", "Statement", "grammar_text", "parse_entries"]
 
@@ -109,7 +109,7 @@ def grammar_text() -> str:
     packaged = resources.files("timespec").joinpath("_grammar", "timespec.lark")
     if packaged.is_file():
         return packaged.read_text(encoding="utf-8")
-    here = Path(__file__).resolve().parent.parent / "grammar" / "timespec.lark"
+    here = Path(__file__).resolve().parents[2] / "grammar" / "timespec.lark"
     return here.read_text(encoding="utf-8")
 
 
@@ -372,11 +372,8 @@ def _syntax_hint(line: str, column: int, got: str) -> str | None:
     if before.endswith(("±", "+-", "+/-")):
         return "a tolerance needs a size after ±, e.g. ±5% or ±2 ms"
     head = re.match(r"\s*([A-Za-z_]\w*)\s*:", line)
-    if head:
-        from timespec.statements import KEYWORDS
-
-        if head.group(1) in KEYWORDS:
-            return f"statements take no ':'; write it like: {KEYWORDS[head.group(1)].example}"
+    if head and head.group(1) in KEYWORDS:
+        return f"statements take no ':'; write it like: {KEYWORDS[head.group(1)].example}"
     if got == ":":
         return "a block header is '<kind> <name>:' on a line of its own, e.g. 'oneshot relay_hold:'"
     if before.endswith(" to") or before.endswith("\tto"):

@@ -19,16 +19,16 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Literal
 
+from timespec.design.result import BlockResult, OutputResult, Result
 from timespec.errors import UsageError
-from timespec.fmt import (
+from timespec.model import Window
+from timespec.numbers import (
     format_interval,
     format_part,
     format_quantity,
     format_window,
     ratio_unit,
 )
-from timespec.model import Window
-from timespec.result import BlockResult, OutputResult, Result
 
 __all__ = [
     "HEADERS",
@@ -218,7 +218,7 @@ def render_table(
     Parameters
     ----------
     result
-        A solved spec (:func:`timespec.solver.solve`).
+        A solved spec (:func:`timespec.design.solver.solve`).
     fmt
         ``"markdown"`` (a pipe table), ``"rest"`` (a ``list-table`` directive) or
         ``"csv"`` (RFC 4180: comma separated, quoted where needed, CRLF line ends).

@@ -18,8 +18,8 @@ import itertools
 from pathlib import Path
 
 from timespec.errors import SpecError
-from timespec.parser import Entry, Header, Statement, parse_entries
-from timespec.values import (
+from timespec.language.parser import Entry, Header, Statement, parse_entries
+from timespec.language.values import (
     Bound,
     Fraction,
     Quantity,

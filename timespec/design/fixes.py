@@ -2,7 +2,7 @@
 
 Nothing here is guessed.  Each candidate change is applied to the block (a
 :func:`dataclasses.replace` of its part policies, pinned parts or conditions), the
-modified block is solved again with :func:`timespec.solver.solve_block`, and only
+modified block is solved again with :func:`timespec.design.solver.solve_block`, and only
 changes whose re-solved design *meets* at worst case are offered, cheapest first.
 
 Candidate changes
@@ -13,7 +13,7 @@ Candidate changes
 * ``pairs``: allow two standard values in series or parallel as one part;
 * ``resistor-tolerance``: 0.5 % or 0.1 % resistors with a matching tempco
   (50 and 25 ppm/K: metal and thin film, figures from memory, see
-  :data:`timespec.dielectrics.RESISTOR_TCR_PPM`);
+  :data:`timespec.parts.dielectrics.RESISTOR_TCR_PPM`);
 * ``capacitor-tolerance``: 10, 5, 2 or 1 % capacitors (class 2 ceramics not below
   5 %, electrolytics not below 10 %: what is commonly made, common practice);
 * ``dielectric``: C0G or polypropylene film instead of a class 2 ceramic,
@@ -50,15 +50,15 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from timespec import dielectrics
-from timespec import series as eseries
 from timespec.analysis import Factor, FloatArray, worst_case
+from timespec.design.result import BlockResult, Candidate
+from timespec.design.solver import solve_block
 from timespec.families import family
-from timespec.families.base import Part
-from timespec.fmt import format_interval, format_part_value
 from timespec.model import Block, CapacitorPolicy, Conditions, PinnedPart, ResistorPolicy
-from timespec.result import BlockResult, Candidate
-from timespec.solver import solve_block
+from timespec.numbers import format_interval, format_part_value
+from timespec.parts import dielectrics
+from timespec.parts import series as eseries
+from timespec.parts.part import Part
 
 __all__ = [
     "COSTS",
@@ -776,7 +776,7 @@ def suggest_fixes(block: Block, *, limit: int = 3, solved: BlockResult | None = 
     limit
         How many fixes to return at most.
     solved
-        The block's result from :func:`timespec.solver.solve_block`, when the
+        The block's result from :func:`timespec.design.solver.solve_block`, when the
         caller has it already (it is not solved again).
 
     Returns

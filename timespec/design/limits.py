@@ -28,8 +28,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from timespec.design.result import BlockResult, OutputResult, Result
 from timespec.model import Fixture, Window
-from timespec.result import BlockResult, OutputResult, Result
 
 __all__ = [
     "Limit",
@@ -269,7 +269,7 @@ def render_limits(limits: list[Limit]) -> str:
     str
         One line per limit, then the notes.
     """
-    from timespec.fmt import format_interval, format_quantity
+    from timespec.numbers import format_interval, format_quantity
 
     if not limits:
         return "no time to measure: the spec has no one-shot, astable, delay or relaxation block\n"

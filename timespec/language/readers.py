@@ -1,10 +1,10 @@
 """Statement readers: how each statement's arguments become model values.
 
-Each reader takes a parsed :class:`~timespec.parser.Statement`, checks the kind
+Each reader takes a parsed :class:`~timespec.language.parser.Statement`, checks the kind
 and shape of its arguments, and returns a :class:`Reading` — or raises a
 positioned :class:`~timespec.errors.SpecError` naming what is wrong and how
 to write it.  The table that says which keyword uses which reader, and in
-which blocks, is :mod:`timespec.statements`.
+which blocks, is :mod:`timespec.language.statements`.
 """
 
 from __future__ import annotations
@@ -15,15 +15,11 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from typing import Any
 
-from timespec import dielectrics, series
-from timespec.devices import GATE_CLASSES, TIMER_CLASSES
-from timespec.errors import SpecError, SpecUnitError, SpecValueError
-from timespec.model import PinnedPart, Requirement, Window
-from timespec.parser import Statement
-from timespec.values import (
+from timespec.errors import Pos, SpecError, SpecUnitError, SpecValueError
+from timespec.language.parser import Statement
+from timespec.language.values import (
     Bound,
     Fraction,
-    Pos,
     Quantity,
     Range,
     Term,
@@ -32,6 +28,10 @@ from timespec.values import (
     Toleranced,
     Word,
 )
+from timespec.language.vocabulary import KEYWORDS
+from timespec.model import PinnedPart, Requirement, Window
+from timespec.parts import dielectrics, series
+from timespec.parts.devices import GATE_CLASSES, TIMER_CLASSES
 
 __all__ = [
     "KIND_NAMES",
@@ -62,8 +62,6 @@ __all__ = [
 
 def _example(keyword: str) -> str:
     """The example statement of a keyword, from the table."""
-    from timespec.statements import KEYWORDS
-
     kw = KEYWORDS.get(keyword)
     return kw.example if kw else keyword
 
@@ -179,8 +177,6 @@ def _single(stmt: Statement, what: str) -> Term:
 
 
 def _example_hint(keyword: str) -> str | None:
-    from timespec.statements import KEYWORDS
-
     kw = KEYWORDS.get(keyword)
     return f"write it like: {kw.example}" if kw else None
 

@@ -48,8 +48,8 @@ from collections.abc import Mapping
 from typing import Any
 
 from timespec import __version__
-from timespec.families.base import Part
-from timespec.result import BlockResult, Candidate, OutputResult, Result
+from timespec.design.result import BlockResult, Candidate, OutputResult, Result
+from timespec.parts.part import Part
 from timespec.units import kind_symbol
 
 __all__ = ["FORMAT_VERSION", "result_to_dict", "result_to_json"]

@@ -1,0 +1,113 @@
+"""What each statement means: every keyword of the vocabulary paired with its reader.
+
+The vocabulary (:mod:`timespec.language.vocabulary`) names the keywords; this
+module maps each to the reader (from :mod:`timespec.language.readers`) that
+turns the parsed arguments into model values, and reads one statement.
+"""
+
+from __future__ import annotations
+
+from timespec.language.parser import Statement
+from timespec.language.readers import (
+    Reader,
+    Reading,
+    did_you_mean,
+    error_at,
+    read_ambient,
+    read_choice,
+    read_clock,
+    read_count,
+    read_gate,
+    read_include,
+    read_level,
+    read_life,
+    read_limit,
+    read_policy,
+    read_ppm,
+    read_requirement,
+    read_span,
+    read_spread,
+    read_supply,
+    read_timer,
+    read_trigger,
+    read_use,
+)
+
+__all__ = ["READERS", "Reading", "did_you_mean", "error_at", "read_statement"]
+
+#: The reader of every keyword (the keys are exactly those of ``KEYWORDS``).
+READERS: dict[str, Reader] = {
+    "supply": read_supply,
+    "ambient": read_ambient,
+    "life": read_life,
+    "resistors": read_policy("resistors"),
+    "capacitors": read_policy("capacitors"),
+    "leakage": read_limit(["current"]),
+    "samples": read_count(1),
+    "seed": read_count(0),
+    "spread": read_spread,
+    "timer": read_timer,
+    "use": read_use,
+    "width": read_requirement("width", ["time"]),
+    "trigger": read_trigger,
+    "control": read_span(["voltage"]),
+    "frequency": read_requirement("frequency", ["frequency"]),
+    "period": read_requirement("period", ["time"]),
+    "duty": read_requirement("duty", ["ratio"]),
+    "high": read_requirement("high", ["time"]),
+    "low": read_requirement("low", ["time"]),
+    "circuit": read_choice(["classic", "diode", "feedback"]),
+    "diode": read_span(["voltage"]),
+    "delay": read_requirement("delay", ["time"]),
+    "threshold": read_span(["voltage"], fraction_of="supply"),
+    "start": read_level(["voltage"], positive=False),
+    "gate": read_gate,
+    "rising": read_span(["voltage"], fraction_of="supply"),
+    "falling": read_span(["voltage"], fraction_of="supply"),
+    "load": read_level(["capacitance"]),
+    "stray": read_span(["capacitance"]),
+    "shunt": read_level(["capacitance"]),
+    "motional": read_level(["capacitance"]),
+    "esr": read_limit(["resistance"]),
+    "drive": read_limit(["power"]),
+    "gm": read_level(["transconductance"]),
+    "swing": read_level(["voltage"]),
+    "tolerance": read_ppm(),
+    "stability": read_ppm(),
+    "aging": read_ppm(rate=True),
+    "accuracy": read_ppm(requirement="accuracy"),
+    "clock": read_clock,
+    "uncertainty": read_level(["time"], positive=False),
+    "decision": read_choice(["guarded", "simple", "expected"]),
+    "include": read_include,
+}
+
+
+#: Keywords whose meaning depends on the block kind.
+_BY_KIND: dict[tuple[str, str], Reader] = {
+    ("crystal", "frequency"): read_level(["frequency"]),
+}
+
+
+def read_statement(stmt: Statement, kind: str) -> Reading:
+    """Read one statement (its keyword must be known).
+
+    Parameters
+    ----------
+    stmt
+        The parsed statement.
+    kind
+        The kind of block it stands in (or ``"defaults"``).
+
+    Returns
+    -------
+    Reading
+        What it contributes.
+
+    Raises
+    ------
+    SpecError
+        When its arguments are wrong.
+    """
+    reader = _BY_KIND.get((kind, stmt.keyword), READERS[stmt.keyword])
+    return reader(stmt)
