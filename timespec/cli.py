@@ -33,7 +33,7 @@ from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import TextIO
 
-from timespec import __version__
+from timespec._version import __version__
 from timespec.errors import SpecError, UsageError
 
 __all__ = ["main", "write_atomic", "write_atomic_bytes"]

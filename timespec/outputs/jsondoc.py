@@ -47,7 +47,7 @@ import math
 from collections.abc import Mapping
 from typing import Any
 
-from timespec import __version__
+from timespec._version import __version__
 from timespec.design.result import BlockResult, Candidate, OutputResult, Result
 from timespec.parts.part import Part
 from timespec.units import kind_symbol

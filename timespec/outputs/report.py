@@ -13,7 +13,7 @@ import textwrap
 from collections.abc import Mapping, Sequence
 from typing import Literal
 
-from timespec import __version__
+from timespec._version import __version__
 from timespec.analysis import RssResult
 from timespec.design.result import BlockResult, Candidate, OutputResult, Result
 from timespec.numbers import (
