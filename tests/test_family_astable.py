@@ -17,7 +17,7 @@ from timespec.analysis import nominal_inputs, worst_case
 from timespec.design.solver import solve_block
 from timespec.errors import SpecValueError
 from timespec.families.astable import Astable, duty_band, reachable_variants
-from timespec.families.astable_monotone import declarations
+from timespec.families.astable.monotone import declarations
 from timespec.language.assemble import parse
 from timespec.model import Block
 from timespec.parts.part import Design

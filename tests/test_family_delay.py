@@ -19,8 +19,9 @@ from timespec.analysis import Factor, worst_case
 from timespec.design.solver import evaluate_design, solve_block
 from timespec.families import family
 from timespec.families.candidates import capacitor_part, resistor_part
-from timespec.families.delay import Delay, aim_nominal
+from timespec.families.delay import Delay
 from timespec.families.protocol import FloatArray
+from timespec.families.rcscale import aim_nominal
 from timespec.language.assemble import parse
 from timespec.model import Block, Window
 from timespec.parts.part import Design

@@ -22,7 +22,8 @@ from timespec.families import family
 from timespec.families.candidates import capacitor_part, resistor_part
 from timespec.families.inputs import apply_part
 from timespec.families.protocol import FloatArray
-from timespec.families.relaxation import Relaxation, thresholds, width_knots
+from timespec.families.relaxation import Relaxation
+from timespec.families.schmitt import thresholds, width_knots
 from timespec.language.assemble import parse
 from timespec.model import Block
 from timespec.parts.part import Design

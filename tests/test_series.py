@@ -10,6 +10,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from timespec.parts import pairs
 from timespec.parts import series as es
 
 # ---------------------------------------------------------------------------------------------
@@ -306,32 +307,32 @@ def test_pairs_against_brute_force() -> None:
         for how, v in (("series", a + b), ("parallel", a * b / (a + b))):
             if low * (1 - 1e-9) <= v <= high * (1 + 1e-9):
                 expected.add((a, b, how))
-    got = es.pair_values("E12", low, high, max_ratio=ratio)
+    got = pairs.pair_values("E12", low, high, max_ratio=ratio)
     assert {(p.a, p.b, p.how) for p in got} == expected
     assert [p.value for p in got] == sorted(p.value for p in got)
     for p in got:
         assert p.a <= p.b
         want = p.a + p.b if p.how == "series" else p.a * p.b / (p.a + p.b)
         assert p.value == pytest.approx(want, rel=1e-15)
-    assert es.Pair(1000.0, 1000.0, "parallel", 500.0) not in got  # out of range
+    assert pairs.Pair(1000.0, 1000.0, "parallel", 500.0) not in got  # out of range
 
 
 def test_pair_selection_flags() -> None:
-    only_series = es.pair_values("E24", 1e3, 1.1e3, parallel=False)
-    only_parallel = es.pair_values("E24", 1e3, 1.1e3, series=False)
-    both = es.pair_values("E24", 1e3, 1.1e3)
+    only_series = pairs.pair_values("E24", 1e3, 1.1e3, parallel=False)
+    only_parallel = pairs.pair_values("E24", 1e3, 1.1e3, series=False)
+    both = pairs.pair_values("E24", 1e3, 1.1e3)
     assert {p.how for p in only_series} == {"series"}
     assert {p.how for p in only_parallel} == {"parallel"}
     assert len(both) == len(only_series) + len(only_parallel)
-    assert es.pair_values("E24", 1e3, 1.1e3, series=False, parallel=False) == []
-    table = es.pair_table("E24", 1e3, 1.1e3)
-    assert table.dtype == es.PAIR_DTYPE
+    assert pairs.pair_values("E24", 1e3, 1.1e3, series=False, parallel=False) == []
+    table = pairs.pair_table("E24", 1e3, 1.1e3)
+    assert table.dtype == pairs.PAIR_DTYPE
     assert len(table) == len(both)
     # 2.2k || 2.2k = 1.1k exactly, and 1k + 100 = 1.1k: both standard E24 pairs
-    assert es.Pair(2200.0, 2200.0, "parallel", 1100.0) in both
-    assert es.Pair(100.0, 1000.0, "series", 1100.0) in both
+    assert pairs.Pair(2200.0, 2200.0, "parallel", 1100.0) in both
+    assert pairs.Pair(100.0, 1000.0, "series", 1100.0) in both
     with pytest.raises(ValueError, match="max_ratio"):
-        es.pair_values("E24", 1e3, 1.1e3, max_ratio=0.5)
+        pairs.pair_values("E24", 1e3, 1.1e3, max_ratio=0.5)
 
 
 @pytest.mark.parametrize("how", ["series", "parallel"])
@@ -339,7 +340,7 @@ def test_pair_tolerance_equal_parts_keep_tolerance(how: str) -> None:
     # Worst case of a sum or a parallel combination of parts with the same relative
     # tolerance t is t (both scale by 1 +- t); textbook worst-case analysis.
     for a, b, t in [(1e3, 4.7e3, 0.01), (10.0, 10.0, 0.05), (2.2e3, 1e6, 0.2)]:
-        assert es.pair_tolerance(a, b, how, t, t) == pytest.approx(t, rel=1e-12)
+        assert pairs.pair_tolerance(a, b, how, t, t) == pytest.approx(t, rel=1e-12)
 
 
 @settings(max_examples=100, deadline=None)
@@ -361,16 +362,16 @@ def test_pair_tolerance_against_dense_sweep(
     values = aa + bb if how == "series" else aa * bb / (aa + bb)
     nominal = a + b if how == "series" else a * b / (a + b)
     rel = values / nominal - 1
-    low, high = es.pair_tolerance_bounds(a, b, how, ta, tb)
+    low, high = pairs.pair_tolerance_bounds(a, b, how, ta, tb)
     assert low == pytest.approx(rel.min(), abs=1e-12)
     assert high == pytest.approx(rel.max(), abs=1e-12)
-    assert es.pair_tolerance(a, b, how, ta, tb) == pytest.approx(max(-low, high), abs=0)
+    assert pairs.pair_tolerance(a, b, how, ta, tb) == pytest.approx(max(-low, high), abs=0)
 
 
 def test_pair_tolerance_bad_input() -> None:
     with pytest.raises(ValueError, match="'series' or 'parallel'"):
-        es.pair_tolerance(1.0, 1.0, "bridge", 0.01, 0.01)
+        pairs.pair_tolerance(1.0, 1.0, "bridge", 0.01, 0.01)
     with pytest.raises(ValueError, match="tol_a"):
-        es.pair_tolerance(1.0, 1.0, "series", 1.5, 0.01)
+        pairs.pair_tolerance(1.0, 1.0, "series", 1.5, 0.01)
     with pytest.raises(ValueError, match="greater than zero"):
-        es.pair_tolerance(0.0, 1.0, "series", 0.01, 0.01)
+        pairs.pair_tolerance(0.0, 1.0, "series", 0.01, 0.01)

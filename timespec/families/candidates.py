@@ -14,7 +14,7 @@ import numpy as np
 import numpy.typing as npt
 
 from timespec.model import CapacitorPolicy, PinnedPart, ResistorPolicy
-from timespec.parts import series
+from timespec.parts import pairs, series
 from timespec.parts.part import Part
 
 __all__ = [
@@ -199,7 +199,7 @@ def pair_part(
     Notes
     -----
     Series ``a + b``, parallel ``a·b/(a + b)``; the worst-case tolerance comes from
-    :func:`timespec.parts.series.pair_tolerance` (equal to the parts' tolerance when both
+    :func:`timespec.parts.pairs.pair_tolerance` (equal to the parts' tolerance when both
     share it).  Both combinations are weighted means of the parts' relative changes
     (by value in series, by conductance in parallel for resistors; the reverse for
     capacitors), so a common tempco band, dielectric drift or ageing bound applies
@@ -213,7 +213,7 @@ def pair_part(
     """
     lo, hi = sorted((float(a), float(b)))
     value = lo + hi if how == "series" else lo * hi / (lo + hi)
-    tol = series.pair_tolerance(lo, hi, how, policy.tolerance, policy.tolerance)
+    tol = pairs.pair_tolerance(lo, hi, how, policy.tolerance, policy.tolerance)
     single = (
         resistor_part(ref, value, policy)
         if isinstance(policy, ResistorPolicy)
@@ -230,7 +230,7 @@ def _nearest_pairs(
     lo, hi = max(below, low), min(above, high)
     if not lo < hi:
         return []
-    table = series.pair_table(series_name, lo, hi)
+    table = pairs.pair_table(series_name, lo, hi)
     slack = 1e-9
     keep = (table["a"] >= low * (1 - slack)) & (table["b"] <= high * (1 + slack))
     # a pair equal to a single standard value adds a part for nothing
@@ -273,7 +273,7 @@ def neighbour_parts(ref: str, x: float, policy: ResistorPolicy | CapacitorPolicy
 
     Notes
     -----
-    Pairs come from :func:`timespec.parts.series.pair_table` (larger/smaller part ratio at
+    Pairs come from :func:`timespec.parts.pairs.pair_table` (larger/smaller part ratio at
     most 10) restricted to the gap between the single neighbours, so the table stays
     small; a pair that equals a single standard value is dropped.
 

@@ -15,8 +15,9 @@ from pathlib import Path
 from typing import Any
 
 from timespec.errors import Pos, SpecError, SpecIncludeError, SpecValueError
+from timespec.language.arguments import did_you_mean, error_at
 from timespec.language.parser import Entry, Header, Statement, parse_entries
-from timespec.language.statements import did_you_mean, error_at, read_statement
+from timespec.language.statements import read_statement
 from timespec.language.values import Text
 from timespec.language.vocabulary import KEYWORDS
 from timespec.model import (

@@ -1,39 +1,34 @@
 """What each statement means: every keyword of the vocabulary paired with its reader.
 
 The vocabulary (:mod:`timespec.language.vocabulary`) names the keywords; this
-module maps each to the reader (from :mod:`timespec.language.readers`) that
-turns the parsed arguments into model values, and reads one statement.
+module maps each to the reader (from :mod:`timespec.language.readers` or
+:mod:`timespec.language.policies`) that turns the parsed arguments into model
+values, and reads one statement.
 """
 
 from __future__ import annotations
 
+from timespec.language.arguments import Reader, Reading
 from timespec.language.parser import Statement
+from timespec.language.policies import read_gate, read_policy, read_timer, read_use
 from timespec.language.readers import (
-    Reader,
-    Reading,
-    did_you_mean,
-    error_at,
     read_ambient,
     read_choice,
     read_clock,
     read_count,
-    read_gate,
     read_include,
     read_level,
     read_life,
     read_limit,
-    read_policy,
     read_ppm,
     read_requirement,
     read_span,
     read_spread,
     read_supply,
-    read_timer,
     read_trigger,
-    read_use,
 )
 
-__all__ = ["READERS", "Reading", "did_you_mean", "error_at", "read_statement"]
+__all__ = ["READERS", "read_statement"]
 
 #: The reader of every keyword (the keys are exactly those of ``KEYWORDS``).
 READERS: dict[str, Reader] = {

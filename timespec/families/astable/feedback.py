@@ -1,0 +1,240 @@
+"""The output-feedback astable: one resistor ``R`` from the timer output to ``C``.
+
+The capacitor charges and discharges through ``R`` from the timer's own output,
+so the circuit needs an output that swings to the rails (the CMOS class,
+:data:`RAIL_OUTPUT_SHARE`) and runs close to 50 %, set by the output levels and
+the threshold ratio (:func:`feedback_duty_range`).  The output levels are
+modelled as a high level ``output.drop`` below the supply and a low level
+``output.low`` (up to :data:`FEEDBACK_LOW_MAX`); the discharge pin is unused.
+Here: those constants and factors, the half-period model, the resistor options
+of the candidate search, and the error for a timer without rail-to-rail output.
+"""
+
+from __future__ import annotations
+
+import itertools
+import math
+
+import numpy as np
+
+from timespec.analysis import Factor
+from timespec.families.astable.nominal import NominalRun, safe_ratio
+from timespec.families.candidates import snap
+from timespec.families.inputs import apply_part, drain_current
+from timespec.families.protocol import Finding, FloatArray, Inputs
+from timespec.model import Block
+from timespec.physics import astable
+
+__all__ = [
+    "FEEDBACK_LOW_MAX",
+    "RAIL_OUTPUT_SHARE",
+    "STALL_CAUSE",
+    "UNUSED_TIMER_FACTORS",
+    "feedback_duty_range",
+    "half_periods",
+    "output_factors",
+    "rail_findings",
+    "rail_output",
+    "resistor_options",
+]
+
+#: Output low level of a CMOS timer sinking the feedback resistor's current
+#: (well under 1 mA), V (from memory; generic CMOS output stages).
+FEEDBACK_LOW_MAX: float = 0.05
+
+#: The feedback circuit needs ``output_drop`` at most this share of the lowest
+#: supply: a rail-to-rail (CMOS) output (common practice).
+RAIL_OUTPUT_SHARE: float = 0.05
+
+#: Timer factors the circuit does not use: the discharge on-resistance (the
+#: discharge pin is left unconnected).
+UNUSED_TIMER_FACTORS: tuple[str, ...] = ("timer.ron",)
+
+#: What keeps the capacitor from a threshold when the circuit stalls.
+STALL_CAUSE = "the output level, or the drain through R,"
+
+
+def rail_output(block: Block) -> bool:
+    """Whether the timer's output high level sits close enough to the rail.
+
+    Parameters
+    ----------
+    block
+        An astable block.
+
+    Returns
+    -------
+    bool
+        ``output_drop`` at most :data:`RAIL_OUTPUT_SHARE` of the lowest supply.
+    """
+    t = block.timer
+    assert t is not None
+    return t.output_drop <= RAIL_OUTPUT_SHARE * block.conditions.supply.low
+
+
+def feedback_duty_range(block: Block) -> tuple[float, float]:
+    """Duty cycles the output-feedback circuit can run at with this timer class.
+
+    Parameters
+    ----------
+    block
+        An astable block.
+
+    Returns
+    -------
+    tuple of float
+        ``(low, high)`` over the threshold-ratio band, output drop ``0…output_drop``,
+        output low ``0…FEEDBACK_LOW_MAX`` and the supply window; ``(nan, nan)``
+        when the output never reaches the upper threshold anywhere.
+
+    Notes
+    -----
+    ``tH ∝ ln((V_oh − kV/2)/(V_oh − kV))``, ``tL ∝ ln((kV − V_ol)/(kV/2 − V_ol))``,
+    ``D = tH/(tH + tL)``: 50 % with rail-to-rail levels and ``k = 2/3``.
+    """
+    t = block.timer
+    assert t is not None
+    grid = itertools.product(
+        t.ratio_band,
+        (0.0, t.output_drop),
+        (0.0, FEEDBACK_LOW_MAX),
+        (block.conditions.supply.low, block.conditions.supply.high),
+    )
+    k, drop, vl, v = (np.array(col, dtype=np.float64) for col in zip(*grid, strict=True))
+    th = astable.feedback_high_time(1.0, 1.0, v - drop, v, k)
+    tl = astable.feedback_low_time(1.0, 1.0, vl, v, k)
+    d = astable.duty(th, tl)
+    ok = np.isfinite(th) & np.isfinite(tl)
+    if not ok.any():
+        return (math.nan, math.nan)
+    return (float(d[ok].min()), float(d[ok].max()))
+
+
+def output_factors(block: Block) -> list[Factor]:
+    """The timer output's levels as the circuit sees them.
+
+    Parameters
+    ----------
+    block
+        An astable block.
+
+    Returns
+    -------
+    list of Factor
+        ``output.drop`` (high level below the supply, ``0…output_drop`` V of the
+        timer class) and ``output.low`` (low level, ``0…FEEDBACK_LOW_MAX`` V).
+    """
+    t = block.timer
+    assert t is not None
+    drop = t.output_drop
+    return [
+        Factor(
+            "output.drop",
+            f"{t.name} output high below supply (0…{drop:g} V)",
+            0.5 * drop,
+            0.0,
+            drop,
+            group="timer",
+        ),
+        Factor(
+            "output.low",
+            f"{t.name} output low level (0…{FEEDBACK_LOW_MAX:g} V)",
+            0.5 * FEEDBACK_LOW_MAX,
+            0.0,
+            FEEDBACK_LOW_MAX,
+            group="timer",
+        ),
+    ]
+
+
+def half_periods(x: Inputs) -> tuple[FloatArray, FloatArray]:
+    """High and low time before the timer's drift, from factor samples.
+
+    Parameters
+    ----------
+    x
+        Factor samples.
+
+    Returns
+    -------
+    tuple of FloatArray
+        ``(tH, tL)``, s: :func:`~timespec.physics.astable.feedback_high_time` and
+        :func:`~timespec.physics.astable.feedback_low_time` with output levels
+        ``V − drop`` and ``V_ol``; ``inf`` where a threshold is never reached.
+    """
+    c = apply_part(x, "C")
+    v = x["supply"]
+    k = x["timer.ratio"]
+    i = drain_current(x)
+    r = apply_part(x, "R")
+    th = astable.feedback_high_time(r, c, v - x["output.drop"], v, k, i)
+    tl = astable.feedback_low_time(r, c, x["output.low"], v, k, i)
+    return th, tl
+
+
+def resistor_options(
+    block: Block,
+    run: NominalRun,
+    cs: FloatArray,
+    period: float,
+) -> list[FloatArray]:
+    """Standard-value options for R at each capacitor.
+
+    Parameters
+    ----------
+    block
+        An astable block.
+    run
+        The nominal model of the feedback circuit.
+    cs
+        Capacitor values, F.
+    period
+        Target period, s.
+
+    Returns
+    -------
+    list of FloatArray
+        The pinned R; else ``R = T/(C·g)`` with the nominal gain ``g = T/(R·C)``
+        of the full model, corrected twice against it and snapped to both
+        standard neighbours.
+    """
+    rp = block.resistors
+    pin = block.pinned_part("R")
+    if pin is not None:
+        return [np.full(cs.shape, pin.value)]
+    g = run({"R": np.ones(1), "C": np.ones(1)})["period"][0]
+    r = period / (cs * g)
+    for _ in range(2):
+        t = run({"R": r, "C": cs})["period"]
+        r = r * safe_ratio(period, t)
+    return list(snap(rp.series, r, rp.low, rp.high))
+
+
+def rail_findings(block: Block) -> list[Finding]:
+    """Error when the timer class's output does not swing to the rails.
+
+    Parameters
+    ----------
+    block
+        An astable block.
+
+    Returns
+    -------
+    list of Finding
+        ``feedback-needs-rail-output`` unless :func:`rail_output`; else empty.
+    """
+    timer = block.timer
+    assert timer is not None
+    if rail_output(block):
+        return []
+    return [
+        Finding(
+            "error",
+            "feedback-needs-rail-output",
+            f"the feedback circuit charges the capacitor from the timer output, but the "
+            f"{timer.name} timer class's output sits up to {timer.output_drop:g} V below "
+            f"the supply ({block.conditions.supply.low:g} V at the lowest), so the high "
+            "time depends on load and supply. Use 'timer cmos', or 'circuit classic' / "
+            "'circuit diode'.",
+        )
+    ]
