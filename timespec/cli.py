@@ -20,7 +20,9 @@ Commands:
 
 Exit codes: 0 every block meets its requirement; 1 a block fails or is
 infeasible; 2 a mistake in the spec or on the command line (message on
-stderr, no traceback).
+stderr, no traceback); 3 an unexpected error, which is a bug in timespec (one
+line on stderr saying so and how to report it; the traceback only with
+``--debug`` or the environment variable ``TIMESPEC_DEBUG=1``).
 """
 
 from __future__ import annotations
@@ -28,19 +30,27 @@ from __future__ import annotations
 import argparse
 import os
 import sys
-import tempfile
 from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import TextIO
 
 from timespec._version import __version__
 from timespec.errors import SpecError, UsageError
+from timespec.outputs.files import write_bytes_safely, write_text_safely
 
-__all__ = ["main", "write_atomic", "write_atomic_bytes"]
+__all__ = ["EXIT_BUG", "main", "write_atomic", "write_atomic_bytes"]
 
 EXIT_OK = 0
 EXIT_FAILED = 1
 EXIT_USAGE = 2
+#: An unexpected exception: a bug in timespec, never a verdict.
+EXIT_BUG = 3
+
+#: Where a bug report goes (printed with an unexpected error).
+REPORT_BUGS = "the project's issue tracker"
+
+#: Set to 1 (or pass ``--debug``) to see the traceback of an unexpected error.
+DEBUG_VARIABLE = "TIMESPEC_DEBUG"
 
 
 class _Parser(argparse.ArgumentParser):
@@ -59,6 +69,11 @@ def _build_parser() -> argparse.ArgumentParser:
         ),
     )
     parser.add_argument("--version", action="version", version=f"timespec {__version__}")
+    parser.add_argument(
+        "--debug",
+        action="store_true",
+        help=f"show the traceback of an unexpected error (also {DEBUG_VARIABLE}=1)",
+    )
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
 
     def common(p: argparse.ArgumentParser) -> None:
@@ -162,9 +177,10 @@ def write_atomic(path: str | Path, text: str) -> None:
     Raises
     ------
     UsageError
-        When the folder does not exist or cannot be written.
+        When the destination cannot be written
+        (see :func:`timespec.outputs.files.write_bytes_safely`).
     """
-    write_atomic_bytes(path, text.encode("utf-8"))
+    write_text_safely(path, text)
 
 
 def _figure_bytes(fig: object, fmt: str) -> bytes:
@@ -176,7 +192,7 @@ def _figure_bytes(fig: object, fmt: str) -> bytes:
 
 
 def write_atomic_bytes(path: str | Path, data: bytes) -> None:
-    """Write bytes to a file atomically (see :func:`write_atomic`).
+    """Write bytes to a file safely (see :func:`timespec.outputs.files.write_bytes_safely`).
 
     Parameters
     ----------
@@ -188,23 +204,9 @@ def write_atomic_bytes(path: str | Path, data: bytes) -> None:
     Raises
     ------
     UsageError
-        When the folder does not exist or cannot be written.
+        When the destination cannot be written.
     """
-    dest = Path(path)
-    folder = dest.parent if str(dest.parent) else Path(".")
-    if not folder.is_dir():
-        raise UsageError(f"cannot write {str(dest)!r}: folder {str(folder)!r} does not exist")
-    try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{dest.name}.", suffix=".tmp", dir=folder)
-    except OSError as exc:
-        raise UsageError(f"cannot write {str(dest)!r}: {exc.strerror}") from None
-    try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(data)
-        os.replace(tmp, dest)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
+    write_bytes_safely(path, data)
 
 
 def _emit(text: str, output: str | None, stdout: TextIO) -> None:
@@ -301,8 +303,102 @@ def _run(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
 
         result = api.solve(spec, statistics=False, fixes=False)
         _emit(render_table(result, args.format), args.output, stdout)
-        return EXIT_OK
+        return EXIT_OK if result.ok else EXIT_FAILED
     raise UsageError("no command given (try 'timespec solve FILE' or 'timespec --help')")
+
+
+#: ASCII stand-ins for the characters timespec prints, for consoles that cannot encode them.
+_ASCII = str.maketrans(
+    {
+        "\u00b5": "u",
+        "\u03bc": "u",
+        "\u03a9": "Ohm",
+        "\u2126": "Ohm",
+        "\u00b1": "+/-",
+        "\u2212": "-",
+        "\u2013": "-",
+        "\u2014": "-",
+        "\u2026": "...",
+        "\u00b0": "deg",
+        "\u00d7": "x",
+        "\u00b7": "*",
+        "\u2265": ">=",
+        "\u2264": "<=",
+        "\u2192": "->",
+        "\u2248": "~",
+        "\u221e": "inf",
+        "\u2032": "'",
+        "\u2018": "'",
+        "\u2019": "'",
+        "\u201c": '"',
+        "\u201d": '"',
+        "\u00b2": "^2",
+        "\u221a": "sqrt",
+        "\u2500": "-",
+        "\u2502": "|",
+        "\u25b2": "^",
+    }
+)
+
+
+def ascii_fallback(text: str) -> str:
+    """Text with the characters timespec prints replaced by ASCII stand-ins.
+
+    Parameters
+    ----------
+    text
+        Any text.
+
+    Returns
+    -------
+    str
+        Pure ASCII: known symbols spelled out (``µ`` → ``u``, ``Ω`` → ``Ohm``,
+        ``±`` → ``+/-`` ...), anything else as ``?``.
+    """
+    return text.translate(_ASCII).encode("ascii", "replace").decode("ascii")
+
+
+class _Console:
+    """A text stream that falls back to ASCII when the console cannot encode a character."""
+
+    def __init__(self, stream: TextIO) -> None:
+        self._stream = stream
+
+    def write(self, text: str) -> int:
+        try:
+            return self._stream.write(text)
+        except UnicodeEncodeError:
+            return self._stream.write(ascii_fallback(text))
+
+    def flush(self) -> None:
+        self._stream.flush()
+
+    def isatty(self) -> bool:
+        return self._stream.isatty()
+
+    def __getattr__(self, name: str) -> object:
+        return getattr(self._stream, name)
+
+
+def _bug(exc: BaseException, err: TextIO, debug: bool) -> int:
+    """Report an unexpected exception as a bug: one line, traceback on request."""
+    import traceback
+
+    if debug:
+        traceback.print_exception(exc, file=err)
+    where = ""
+    tb = exc.__traceback__
+    while tb is not None and tb.tb_next is not None:
+        tb = tb.tb_next
+    if tb is not None:
+        where = f" at {Path(tb.tb_frame.f_code.co_filename).name}:{tb.tb_lineno}"
+    hint = "" if debug else f"; run with --debug or {DEBUG_VARIABLE}=1 for the traceback"
+    err.write(
+        f"timespec: internal error{where}: {type(exc).__name__}: {exc}. This is a bug in "
+        f"timespec {__version__}, not in your spec; please report it to {REPORT_BUGS} with "
+        f"the spec and the command{hint}.\n"
+    )
+    return EXIT_BUG
 
 
 def main(
@@ -323,13 +419,16 @@ def main(
     Returns
     -------
     int
-        Exit code: 0 all blocks meet, 1 some block does not, 2 a spec or usage error.
+        Exit code: 0 all blocks meet, 1 some block does not, 2 a spec or usage
+        error, 3 an unexpected error (a bug in timespec, see :data:`EXIT_BUG`).
     """
-    out = stdout or sys.stdout
-    err = stderr or sys.stderr
+    out: TextIO = stdout or _Console(sys.stdout)  # type: ignore[assignment]
+    err: TextIO = stderr or _Console(sys.stderr)  # type: ignore[assignment]
     parser = _build_parser()
+    args_list = list(argv) if argv is not None else sys.argv[1:]
+    debug = "--debug" in args_list or os.environ.get(DEBUG_VARIABLE, "") not in ("", "0")
     try:
-        args = parser.parse_args(list(argv) if argv is not None else None)
+        args = parser.parse_args(args_list)
         if args.command is None:
             parser.print_help(out)
             return EXIT_USAGE
@@ -345,3 +444,5 @@ def main(
         return 130
     except BrokenPipeError:
         return EXIT_OK
+    except Exception as exc:  # the one place every other error is caught
+        return _bug(exc, err, debug)

@@ -2,7 +2,8 @@
 
 The text report (:mod:`~timespec.outputs.report`), the versioned JSON document
 (:mod:`~timespec.outputs.jsondoc`), part-value tables
-(:mod:`~timespec.outputs.tables`) and charts (:mod:`~timespec.outputs.plot`).
+(:mod:`~timespec.outputs.tables`), charts (:mod:`~timespec.outputs.plot`) and
+safe file writing (:mod:`~timespec.outputs.files`).
 May import design and every layer below it; never the API, CLI or Sphinx
 extension.
 """
