@@ -36,6 +36,7 @@ from typing import TextIO
 
 from timespec._version import __version__
 from timespec.errors import SpecError, UsageError
+from timespec.model import MAX_SAMPLES, MAX_SEED
 from timespec.outputs.files import write_bytes_safely, write_text_safely
 
 __all__ = ["EXIT_BUG", "main", "write_atomic", "write_atomic_bytes"]
@@ -90,11 +91,11 @@ def _build_parser() -> argparse.ArgumentParser:
     p_solve.add_argument("--json", action="store_true", help="print the JSON document")
     p_solve.add_argument(
         "--samples",
-        type=_whole(1),
+        type=_whole(1, MAX_SAMPLES),
         metavar="N",
         help="Monte Carlo samples (default: the spec's, else 20000)",
     )
-    p_solve.add_argument("--seed", type=_whole(0), metavar="N", help="Monte Carlo seed")
+    p_solve.add_argument("--seed", type=_whole(0, MAX_SEED), metavar="N", help="Monte Carlo seed")
     p_solve.add_argument(
         "--no-statistics", action="store_true", help="worst case only: skip RSS and Monte Carlo"
     )
@@ -123,7 +124,9 @@ def _build_parser() -> argparse.ArgumentParser:
         required=True,
         help="image to write (.png, .svg or .pdf), atomically",
     )
-    p_plot.add_argument("--samples", type=_whole(1), metavar="N", help="Monte Carlo samples")
+    p_plot.add_argument(
+        "--samples", type=_whole(1, MAX_SAMPLES), metavar="N", help="Monte Carlo samples"
+    )
 
     p_format = sub.add_parser("format", help="lay spec files out canonically")
     p_format.add_argument("specs", metavar="FILE", nargs="+", help="the .tspec files")
@@ -149,8 +152,8 @@ def _build_parser() -> argparse.ArgumentParser:
     return parser
 
 
-def _whole(minimum: int) -> Callable[[str], int]:
-    """An argparse type: a whole number of at least ``minimum``."""
+def _whole(minimum: int, maximum: int) -> Callable[[str], int]:
+    """An argparse type: a whole number from ``minimum`` to ``maximum``."""
 
     def parse(text: str) -> int:
         try:
@@ -159,6 +162,8 @@ def _whole(minimum: int) -> Callable[[str], int]:
             raise argparse.ArgumentTypeError(f"{text!r} is not a whole number") from None
         if value < minimum:
             raise argparse.ArgumentTypeError(f"must be at least {minimum}")
+        if value > maximum:
+            raise argparse.ArgumentTypeError(f"must be at most {maximum:,}")
         return value
 
     return parse

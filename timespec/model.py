@@ -17,6 +17,8 @@ from timespec.parts.devices import GateClass, TimerClass
 
 __all__ = [
     "BLOCK_KINDS",
+    "MAX_SAMPLES",
+    "MAX_SEED",
     "Block",
     "CapacitorPolicy",
     "Conditions",
@@ -223,6 +225,14 @@ class PinnedPart:
             raise ValueError(f"part {self.ref} has a tolerance outside 0…100 %")
 
 
+#: Most Monte Carlo samples a run may ask for (about 15 s for a small spec; the
+#: percentiles and yield are long settled by then).
+MAX_SAMPLES = 10_000_000
+
+#: Largest Monte Carlo seed (a 63-bit whole number).
+MAX_SEED = 2**63 - 1
+
+
 @dataclass(frozen=True)
 class Statistics:
     """How Monte Carlo samples the parts.
@@ -245,10 +255,10 @@ class Statistics:
     sigmas: float = 3.0
 
     def __post_init__(self) -> None:
-        if self.samples < 1:
-            raise ValueError("the sample count must be at least 1")
-        if self.seed < 0:
-            raise ValueError("the seed must not be negative")
+        if not (1 <= self.samples <= MAX_SAMPLES):
+            raise ValueError(f"the sample count must lie from 1 to {MAX_SAMPLES:,}")
+        if not (0 <= self.seed <= MAX_SEED):
+            raise ValueError("the seed must lie from 0 to 2**63 - 1")
         if self.distribution not in ("uniform", "normal"):
             raise ValueError("the spread is 'uniform' or 'normal'")
         if not self.sigmas > 0:

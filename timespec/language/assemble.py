@@ -17,6 +17,13 @@ from typing import Any
 from timespec.errors import Pos, SpecError, SpecIncludeError, SpecValueError
 from timespec.language.arguments import did_you_mean, error_at
 from timespec.language.parser import Entry, Header, Statement, parse_entries
+from timespec.language.sources import (
+    BOM,
+    MAX_INCLUDE_DEPTH,
+    MAX_INCLUDES,
+    SourceError,
+    read_spec_file,
+)
 from timespec.language.statements import read_statement
 from timespec.language.values import Text
 from timespec.language.vocabulary import KEYWORDS
@@ -72,24 +79,40 @@ class _Section:
     requirements: list[Requirement] = field(default_factory=list)
 
 
+@dataclass
+class _Reads:
+    """What one top spec has read: each file parsed once, and the include budget."""
+
+    parsed: dict[Path, list[Entry]] = field(default_factory=dict)
+    includes: int = 0
+
+
 def _walk(
     text: str,
     path: Path | None,
     root: Path | None,
     seen: tuple[Path, ...],
     shown: str | None = None,
+    reads: _Reads | None = None,
 ) -> list[Entry]:
     """Parse and splice ``include`` files in; an include ends the current block."""
     if shown is None and path is not None:
         shown = str(path)
-    entries = parse_entries(text, shown)
+    reads = reads if reads is not None else _Reads()
+    key = seen[-1] if seen else None
+    if key is not None and key in reads.parsed:
+        entries = reads.parsed[key]
+    else:
+        entries = parse_entries(text, shown)
+        if key is not None:
+            reads.parsed[key] = entries
     out: list[Entry] = []
     for entry in entries:
         if isinstance(entry, Statement) and entry.keyword == "include":
             reading = read_statement(entry, "include")
             target: Text = reading.value
             out.append(Header("include", None, entry.pos, None))
-            out.extend(_include(target, path, root, seen))
+            out.extend(_include(target, path, root, seen, reads))
             out.append(Header("include", None, entry.pos, None))
         else:
             out.append(entry)
@@ -97,7 +120,7 @@ def _walk(
 
 
 def _include(
-    target: Text, path: Path | None, root: Path | None, seen: tuple[Path, ...]
+    target: Text, path: Path | None, root: Path | None, seen: tuple[Path, ...], reads: _Reads
 ) -> list[Entry]:
     if path is None or root is None:
         raise error_at(
@@ -120,15 +143,33 @@ def _include(
             f"{target.text!r} includes itself (through {len(seen)} files)",
             target.pos,
         )
+    if len(seen) > MAX_INCLUDE_DEPTH:
+        raise error_at(
+            SpecIncludeError,
+            f"includes nest deeper than {MAX_INCLUDE_DEPTH} files",
+            target.pos,
+            "include shared files from the top spec instead of chaining them",
+        )
+    reads.includes += 1
+    if reads.includes > MAX_INCLUDES:
+        raise error_at(
+            SpecIncludeError,
+            f"the spec pulls in more than {MAX_INCLUDES} included files (repeats counted)",
+            target.pos,
+            "a file included twice at every level doubles the work per level; include "
+            "each shared file once",
+        )
+    if wanted in reads.parsed:
+        return _walk("", _display_path(wanted), root, (*seen, wanted), reads=reads)
     try:
-        text = wanted.read_text(encoding="utf-8")
+        text = read_spec_file(wanted).text
     except FileNotFoundError:
         raise error_at(SpecIncludeError, f"no such file {target.text!r}", target.pos) from None
-    except (OSError, UnicodeDecodeError) as exc:
+    except SourceError as exc:
         raise error_at(
-            SpecIncludeError, f"cannot read {target.text!r}: {exc}", target.pos
+            SpecIncludeError, f"cannot read {target.text!r}: {exc.reason}", target.pos
         ) from None
-    return _walk(text, _display_path(wanted), root, (*seen, wanted))
+    return _walk(text, _display_path(wanted), root, (*seen, wanted), reads=reads)
 
 
 def _display_path(path: Path) -> Path:
@@ -456,7 +497,7 @@ def parse(text: str, path: str | None = None) -> Spec:
     """
     if not isinstance(text, str):
         raise SpecValueError(f"spec text must be a str, not {type(text).__name__}")
-    entries = _walk(text, None, None, (), shown=path)
+    entries = _walk(text.removeprefix(BOM), None, None, (), shown=path)
     return _assemble(entries, path)
 
 
@@ -480,17 +521,11 @@ def load(path: str | Path) -> Spec:
     """
     p = Path(path)
     try:
-        text = p.read_text(encoding="utf-8")
+        text = read_spec_file(p).text
     except FileNotFoundError:
         raise SpecIncludeError(f"no such spec file: {str(p)!r}", path=str(p)) from None
-    except IsADirectoryError:
-        raise SpecIncludeError(f"{str(p)!r} is a folder, not a spec file", path=str(p)) from None
-    except UnicodeDecodeError as exc:
-        raise SpecIncludeError(
-            f"{str(p)!r} is not UTF-8 text ({exc.reason} at byte {exc.start})", path=str(p)
-        ) from None
-    except OSError as exc:
-        raise SpecIncludeError(f"cannot read {str(p)!r}: {exc.strerror}", path=str(p)) from None
+    except SourceError as exc:
+        raise SpecIncludeError(f"cannot read {str(p)!r}: {exc.reason}", path=str(p)) from None
     resolved = p.resolve()
     entries = _walk(text, p, resolved.parent, (resolved,))
     return _assemble(entries, str(p))

@@ -225,12 +225,14 @@ def layout_file(path: str | Path) -> tuple[str, str]:
         When the file cannot be read or does not parse.
     """
     from timespec.errors import SpecIncludeError
+    from timespec.language.sources import BOM, SourceError, read_spec_file
 
     p = Path(path)
     try:
-        original = p.read_text(encoding="utf-8")
+        source = read_spec_file(p)
     except FileNotFoundError:
         raise SpecIncludeError(f"no such spec file: {str(p)!r}", path=str(p)) from None
-    except (OSError, UnicodeDecodeError) as exc:
-        raise SpecIncludeError(f"cannot read {str(p)!r}: {exc}", path=str(p)) from None
-    return original, layout(original, str(p))
+    except SourceError as exc:
+        raise SpecIncludeError(f"cannot read {str(p)!r}: {exc.reason}", path=str(p)) from None
+    mark = BOM if source.bom else ""  # a byte-order mark is kept as it was
+    return mark + source.text, mark + layout(source.text, str(p))

@@ -359,13 +359,15 @@ def read_trigger(stmt: Statement) -> Reading:
     return Reading("setting", out)
 
 
-def read_count(minimum: int) -> Reader:
-    """A reader of a whole number of at least ``minimum``.
+def read_count(minimum: int, maximum: int) -> Reader:
+    """A reader of a whole number from ``minimum`` to ``maximum``.
 
     Parameters
     ----------
     minimum
         The smallest number allowed.
+    maximum
+        The largest number allowed.
 
     Returns
     -------
@@ -379,6 +381,13 @@ def read_count(minimum: int) -> Reader:
             raise error_at(SpecValueError, f"'{stmt.keyword}' needs a whole number", term.pos)
         if term.value < minimum:
             raise error_at(SpecValueError, f"'{stmt.keyword}' must be at least {minimum}", term.pos)
+        if term.value > maximum:
+            raise error_at(
+                SpecValueError,
+                f"'{stmt.keyword}' must be at most {maximum:,}",
+                term.pos,
+                f"allowed: {minimum} to {maximum:,}",
+            )
         return Reading("statistics", {stmt.keyword: int(term.value)})
 
     return read

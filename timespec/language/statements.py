@@ -27,6 +27,7 @@ from timespec.language.readers import (
     read_supply,
     read_trigger,
 )
+from timespec.model import MAX_SAMPLES, MAX_SEED
 
 __all__ = ["READERS", "read_statement"]
 
@@ -38,8 +39,8 @@ READERS: dict[str, Reader] = {
     "resistors": read_policy("resistors"),
     "capacitors": read_policy("capacitors"),
     "leakage": read_limit(["current"]),
-    "samples": read_count(1),
-    "seed": read_count(0),
+    "samples": read_count(1, MAX_SAMPLES),
+    "seed": read_count(0, MAX_SEED),
     "spread": read_spread,
     "timer": read_timer,
     "use": read_use,
