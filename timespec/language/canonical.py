@@ -18,7 +18,7 @@ import itertools
 from pathlib import Path
 
 from timespec.errors import SpecError
-from timespec.language.parser import Entry, Header, Statement, parse_entries
+from timespec.language.parser import Entry, Header, Statement, parse_entries, source_lines
 from timespec.language.values import (
     Bound,
     Fraction,
@@ -122,7 +122,7 @@ def layout(text: str, path: str | None = None) -> str:
     by_line: dict[int, list[Entry]] = {}
     for entry in entries:
         by_line.setdefault(entry.pos.line, []).append(entry)
-    lines = text.splitlines()
+    lines = source_lines(text)
     out: list[str] = []
     in_block = False
     for number, raw in enumerate(lines, start=1):

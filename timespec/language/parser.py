@@ -46,7 +46,7 @@ from timespec.language.vocabulary import KEYWORDS
 from timespec.parts.rkm import parse_rkm
 from timespec.units import unit_info
 
-__all__ = ["Entry", "Header", "Statement", "grammar_text", "parse_entries"]
+__all__ = ["Entry", "Header", "Statement", "grammar_text", "parse_entries", "source_lines"]
 
 SECONDS_PER_YEAR = 365.25 * 24 * 3600.0
 
@@ -390,8 +390,35 @@ def _syntax_hint(line: str, column: int, got: str) -> str | None:
     return None
 
 
+def source_lines(text: str) -> list[str]:
+    """The lines of spec text, as the grammar counts them.
+
+    Parameters
+    ----------
+    text
+        Spec text.
+
+    Returns
+    -------
+    list of str
+        The text split at ``\\n`` only (a ``\\r`` right before it is dropped);
+        no trailing empty line for text that ends with a newline.
+
+    Notes
+    -----
+    The one definition of a line everywhere in timespec (error positions,
+    carets, ``timespec format``): a line ends at LF or CR LF, as in the grammar's
+    ``_NL``.  A form feed, a lone CR, U+0085, U+2028 or U+2029 is an ordinary
+    character inside a line (``str.splitlines`` would split at each of them).
+    """
+    parts = text.split("\n")
+    if parts and parts[-1] == "":
+        parts.pop()
+    return [p[:-1] if p.endswith("\r") else p for p in parts]
+
+
 def _convert_lark_error(exc: UnexpectedInput, text: str, path: str | None) -> SpecSyntaxError:
-    lines = text.splitlines() or [""]
+    lines = source_lines(text) or [""]
     line = getattr(exc, "line", None) or 1
     column = getattr(exc, "column", None) or 1
     if isinstance(exc, UnexpectedEOF) or (line == -1):
@@ -400,7 +427,7 @@ def _convert_lark_error(exc: UnexpectedInput, text: str, path: str | None) -> Sp
     source = lines[line - 1] if 0 < line <= len(lines) else ""
     if isinstance(exc, UnexpectedCharacters):
         got = source[column - 1] if column - 1 < len(source) else ""
-        message = f"unexpected character {got!r}"
+        message = f"unexpected character {got!r}" if got else "unexpected end of the line"
         allowed = exc.allowed or set()
         if allowed:
             message += f"; expected {_expected_text(allowed)}"
@@ -453,7 +480,7 @@ def parse_entries(text: str, path: str | None = None) -> list[Entry]:
     text = text.translate(_LOOKALIKES)
     if text and not text.endswith("\n"):
         text += "\n"
-    lines = text.splitlines()
+    lines = source_lines(text)
     parser, builder = _inline()
     with _LOCK:
         builder.reset(path, lines)
