@@ -162,6 +162,11 @@ class CapacitorPolicy:
         Whether two standard values in series or parallel may stand for one part.
     ageing
         Bound on the relative drift per year (fraction).
+    rated_voltage
+        Rated DC voltage of the capacitors, V, or ``None`` for the default rating class
+        (a multiple of the highest supply, see
+        :data:`timespec.families.capacitors.CLASS2_RATING_FACTOR`); sets the DC-bias loss
+        of class 2 ceramics.
     """
 
     series: str = "E12"
@@ -171,9 +176,16 @@ class CapacitorPolicy:
     high: float = 100e-9
     pairs: bool = False
     ageing: float = 0.0
+    rated_voltage: float | None = None
 
     def __post_init__(self) -> None:
         _check_policy(self.tolerance, self.low, self.high, self.ageing)
+        _check_rating(self.rated_voltage)
+
+
+def _check_rating(rated: float | None) -> None:
+    if rated is not None and not (math.isfinite(rated) and rated > 0):
+        raise ValueError("a rated voltage must be a positive, finite voltage, e.g. 25 V")
 
 
 def _check_policy(tolerance: float, low: float, high: float, ageing: float) -> None:
@@ -207,6 +219,8 @@ class PinnedPart:
         Capacitor dielectric, or ``None`` for the policy's.
     pos
         Where it was written.
+    rated_voltage
+        Capacitor rated DC voltage, V, or ``None`` for the policy's.
     """
 
     ref: str
@@ -217,12 +231,16 @@ class PinnedPart:
     tempco_ppm: float | None = None
     dielectric: str | None = None
     pos: Pos | None = field(default=None, compare=False)
+    rated_voltage: float | None = None
 
     def __post_init__(self) -> None:
         if not (self.value > 0 and math.isfinite(self.value)):
             raise ValueError(f"part {self.ref} must have a positive value")
         if self.tolerance is not None and not (0.0 <= self.tolerance < 1.0):
             raise ValueError(f"part {self.ref} has a tolerance outside 0…100 %")
+        if self.rated_voltage is not None and self.kind != "capacitance":
+            raise ValueError(f"part {self.ref} is not a capacitor; only capacitors are rated")
+        _check_rating(self.rated_voltage)
 
 
 #: Most Monte Carlo samples a run may ask for (about 15 s for a small spec; the

@@ -11,6 +11,7 @@ from __future__ import annotations
 import numpy as np
 
 from timespec.analysis import Factor
+from timespec.families.capacitors import class2_losses
 from timespec.families.protocol import FloatArray, Inputs
 from timespec.model import Block
 from timespec.numbers import format_quantity
@@ -50,11 +51,18 @@ def part_factors(block: Block, part: Part) -> list[Factor]:
     list of Factor
         ``<ref>.value`` (fixed), ``<ref>.tol``, and ``<ref>.tc`` (linear tempco,
         ppm/K, multiplied by the temperature offset) or ``<ref>.drift`` (class 2
-        and electrolytic envelope), and ``<ref>.age`` where a life and an ageing
-        rate are given.
+        and electrolytic envelope), ``<ref>.age`` where a life and an ageing
+        rate are given (for class 2 ceramics also their logarithmic ageing), and
+        ``<ref>.bias`` (class 2 DC-bias loss, ``−bound…0``).
 
     Notes
     -----
+    Class 2 ceramics (see :func:`timespec.families.capacitors.class2_losses`): the
+    ageing factor spans ``−max(stated·years, rate·log10(t_life / 24 h))…+stated·years``
+    (both bound the same drift, so they are not added), and the DC-bias factor
+    ``−L(V_supply,max / V_rated)…0``; both are one-sided losses whose zero end is a new
+    part (or no bias), so a part just after assembly is covered too.
+
     The tempco is a factor of its own and the temperature is shared by all
     parts, so parts of one board see one temperature (a systematic, correlated
     effect), while each part's coefficient varies within its band.
@@ -110,14 +118,38 @@ def part_factors(block: Block, part: Part) -> list[Factor]:
                 )
             )
     age = part.ageing * cond.life_years
-    if age > 0:
+    losses = class2_losses(block, part) if part.kind == "capacitance" else None
+    # A class 2 ceramic's logarithmic ageing and a stated ageing rate bound the same drift:
+    # the loss side takes the larger of the two (never their sum), the gain side the stated.
+    age_low = max(age, losses.ageing) if losses is not None else age
+    if age_low > 0 or age > 0:
+        if losses is not None and losses.ageing > age:
+            gain = f"+{age * 100:.3g}" if age > 0 else "0"
+            what = (
+                f"−{age_low * 100:.3g}…{gain} %, {losses.rate * 100:g} %/decade-hour after reflow"
+            )
+        else:
+            what = f"±{age * 100:.3g} %"
         out.append(
             Factor(
                 f"{ref}.age",
-                f"{ref} ageing over {cond.life_years:g} years (±{age * 100:.3g} %)",
+                f"{ref} ageing over {cond.life_years:g} years ({what})",
                 0.0,
-                -age,
+                -age_low,
                 age,
+                group=ref,
+            )
+        )
+    if losses is not None and losses.bias > 0:
+        out.append(
+            Factor(
+                f"{ref}.bias",
+                f"{ref} DC-bias loss (0…−{losses.bias * 100:.3g} % at "
+                f"{format_quantity(losses.volts, 'voltage')} on "
+                f"{format_quantity(losses.rated, 'voltage')} rated)",
+                0.0,
+                -losses.bias,
+                0.0,
                 group=ref,
             )
         )
@@ -137,7 +169,7 @@ def apply_part(x: Inputs, ref: str) -> FloatArray:
     Returns
     -------
     FloatArray
-        ``value·(1 + tol)·(1 + tc·1e-6·(T − 25))·(1 + drift)·(1 + age)``.
+        ``value·(1 + tol)·(1 + tc·1e-6·(T − 25))·(1 + drift)·(1 + age)·(1 + bias)``.
     """
     v = x[f"{ref}.value"] * (1.0 + x[f"{ref}.tol"])
     tc = x.get(f"{ref}.tc")
@@ -149,6 +181,9 @@ def apply_part(x: Inputs, ref: str) -> FloatArray:
     age = x.get(f"{ref}.age")
     if age is not None:
         v = v * (1.0 + age)
+    bias = x.get(f"{ref}.bias")
+    if bias is not None:
+        v = v * (1.0 + bias)
     return np.asarray(v, dtype=np.float64)
 
 

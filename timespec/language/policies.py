@@ -1,7 +1,8 @@
 """Readers of part choices: part policies, pinned parts and part classes.
 
 The ``resistors`` and ``capacitors`` policies (series, tolerance, tempco or
-dielectric, value range, pairs, ageing), the parts pinned by ``use``, and the
+dielectric, value range, pairs, ageing, and for capacitors a rated voltage
+``rated 25 V``), the parts pinned by ``use``, and the
 ``timer`` and ``gate`` classes.  Like the readers of
 :mod:`timespec.language.readers`, each takes a parsed
 :class:`~timespec.language.parser.Statement` and returns a
@@ -11,6 +12,7 @@ dielectric, value range, pairs, ageing), the parts pinned by ``use``, and the
 
 from __future__ import annotations
 
+import math
 import re
 from collections.abc import Sequence
 from typing import Any
@@ -70,7 +72,8 @@ def _policy_items(stmt: Statement, part: str, terms: Sequence[Term]) -> dict[str
     -------
     dict
         The fields given, by name (``series``, ``tolerance``, ``tempco_ppm``,
-        ``dielectric``, ``low`` and ``high``, ``pairs``, ``ageing``).
+        ``dielectric``, ``low`` and ``high``, ``pairs``, ``ageing``,
+        ``rated_voltage``).
 
     Raises
     ------
@@ -85,7 +88,22 @@ def _policy_items(stmt: Statement, part: str, terms: Sequence[Term]) -> dict[str
             raise error_at(SpecValueError, f"the {key.replace('_', ' ')} is given twice", pos)
         fields[key] = value
 
+    rated_word: Word | None = None
     for term in terms:
+        if rated_word is not None:
+            put("rated_voltage", _rating(rated_word, term), rated_word.pos)
+            rated_word = None
+            continue
+        if isinstance(term, Word) and term.text.lower() == "rated":
+            if is_res:
+                raise error_at(
+                    SpecValueError,
+                    "a resistor policy takes no rated voltage",
+                    term.pos,
+                    "'rated 25 V' belongs to capacitors, e.g. capacitors X7R 10%, rated 25 V",
+                )
+            rated_word = term
+            continue
         if isinstance(term, Word):
             name = _series_name(term)
             if name is not None:
@@ -156,6 +174,8 @@ def _policy_items(stmt: Statement, part: str, terms: Sequence[Term]) -> dict[str
                 )
                 if q.kind == "tempco":
                     hint = "a capacitor's temperature behaviour comes from its dielectric, e.g. C0G"
+                elif q.kind == "voltage" and not is_res:
+                    hint = f"a capacitor's rated voltage is written 'rated {q.text}'"
                 raise error_at(
                     SpecUnitError,
                     f"{q.text!r} ({KIND_NAMES.get(q.kind, q.kind)}) has no meaning in a "
@@ -177,7 +197,60 @@ def _policy_items(stmt: Statement, part: str, terms: Sequence[Term]) -> dict[str
                 term.pos,
                 example_hint(stmt.keyword),
             )
+    if rated_word is not None:
+        raise error_at(
+            SpecValueError,
+            "'rated' needs a voltage after it",
+            rated_word.pos,
+            "write the capacitor's rated DC voltage, e.g. rated 25 V",
+        )
     return fields
+
+
+def _rating(word: Word, term: Term) -> float:
+    """The rated voltage written after ``rated``: a positive, finite voltage.
+
+    Parameters
+    ----------
+    word
+        The ``rated`` word (for messages).
+    term
+        The term after it.
+
+    Returns
+    -------
+    float
+        V.
+
+    Raises
+    ------
+    SpecError
+        When the term is not a single voltage, or is negative, zero or not finite.
+    """
+    hint = "write the capacitor's rated DC voltage, e.g. rated 25 V"
+    if not isinstance(term, Quantity):
+        raise error_at(
+            SpecValueError,
+            f"'{word.text}' needs a single voltage, not {type_name(term)}",
+            term.pos,
+            hint,
+        )
+    if term.kind != "voltage":
+        what = "a bare number" if term.kind is None else KIND_NAMES.get(term.kind, term.kind)
+        raise error_at(
+            SpecUnitError,
+            f"a rated voltage is a voltage, but {term.text!r} is {what}",
+            term.pos,
+            hint,
+        )
+    if not (math.isfinite(term.value) and term.value > 0):
+        raise error_at(
+            SpecValueError,
+            f"a rated voltage is positive and finite, not {term.text!r}",
+            term.pos,
+            hint,
+        )
+    return term.value
 
 
 def read_policy(part: str) -> Reader:
@@ -280,6 +353,7 @@ def read_use(stmt: Statement) -> Reading:
                     tempco_ppm=fields.get("tempco_ppm"),
                     dielectric=fields.get("dielectric"),
                     pos=ref.pos,
+                    rated_voltage=fields.get("rated_voltage"),
                 )
             )
         except ValueError as exc:

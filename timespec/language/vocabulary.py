@@ -65,7 +65,7 @@ _TABLE: list[Keyword] = [
         "capacitors",
         _ALL,
         "capacitors E12 5% C0G, 1n to 100n",
-        "capacitor policy: series, tolerance, dielectric, value range, pairs, ageing",
+        "capacitor policy: series, tolerance, dielectric, value range, pairs, ageing, rated V",
     ),
     _kw(
         "leakage",

@@ -11,6 +11,17 @@ Two kinds of temperature behaviour are modelled:
 Class 2 ceramic codes (EIA-198, e.g. X7R) are decoded letter by letter, so any valid
 three-character code works, not just a fixed list.
 
+Class 2 ceramics also lose capacitance in two ways that are not temperature, both one-sided
+and both bounded here as worst-case inputs:
+
+* **ageing**: after the last heat above the Curie point (reflow soldering resets it) the
+  capacitance falls by a rate per decade of hours, ``loss = rate * log10(t / t_ref)``
+  (:func:`ageing_loss_bound`, rates per class in :func:`class2_ageing_band`);
+* **DC bias**: the capacitance falls with the applied DC voltage relative to the rated
+  voltage, bounded by ``loss <= L_rated * sqrt(V / V_rated)`` (:func:`bias_loss_bound`).
+
+Each band carries a :class:`~timespec.parts.validity.Held` range saying where it holds.
+
 Where a number is not from a standard it is marked "common practice" or "from memory" beside
 it.  All functions use plain floats (farad, degC, relative fractions); bad input raises
 :class:`ValueError`.
@@ -25,11 +36,23 @@ from dataclasses import dataclass
 from types import MappingProxyType
 from typing import Final, Literal
 
+from timespec.parts.validity import Held
+
 __all__ = [
+    "AGEING_REFERENCE_HOURS",
+    "BIAS_LOSS_CEILING",
     "REFERENCE_TEMPERATURE",
     "RESISTOR_TCR_PPM",
+    "Class2Group",
     "Dielectric",
     "Family",
+    "ageing_held",
+    "ageing_loss_bound",
+    "bias_held",
+    "bias_loss_bound",
+    "class2_ageing_band",
+    "class2_bias_at_rated",
+    "class2_group",
     "dielectric",
     "known_names",
     "temperature_drift_bounds",
@@ -381,3 +404,250 @@ def temperature_drift_bounds(d: Dielectric, t_low: float, t_high: float) -> tupl
     if lo == hi == REFERENCE_TEMPERATURE:
         return (0.0, 0.0)
     return (d.drift_low, d.drift_high)
+
+
+# --- class 2 ageing and DC-bias loss ---------------------------------------------------------
+Class2Group = Literal["stable", "mid", "high-k"]
+
+#: Hours after the last heat (reflow) at which the tolerance is taken to be measured and
+#: from which ageing is counted.  Makers de-age class 2 parts (a heat above the Curie
+#: point) and measure them about a day later; 24 h is that practice (common practice, from
+#: memory; some standards refer the tolerance to 1000 h instead, which makes this choice the
+#: more pessimistic one on the low side).
+AGEING_REFERENCE_HOURS: Final = 24.0
+
+#: Ceiling of the DC-bias loss bound when the stress passes the rated voltage (from memory:
+#: even high-K parts keep roughly a tenth of their capacitance at a few times the rating).
+BIAS_LOSS_CEILING: Final = 0.90
+
+# Ageing rate bands per decade-hour, (low, high) as positive fractions of loss.
+# stable (X7R, X8R, X7S ...): 1-2.5 %/decade [AN/Mem: X7R about 1-2 %, class 2 1-2.5 %];
+# mid (X5R, X6S, X7T ...): 2-5 %/decade [AN/Mem]; high-k (Y5V, Z5U ...): 3-7 % [AN/Mem: up to 7].
+_AGEING_BAND: Final[Mapping[str, tuple[float, float]]] = MappingProxyType(
+    {"stable": (0.010, 0.025), "mid": (0.020, 0.050), "high-k": (0.030, 0.070)}
+)
+# Loss bound at the rated DC voltage, any case size [AN/Mem: -10..-50 % at rated voltage is
+# common, 40-80 % in small cases; Y5V/Z5U high-K bodies lose most]: the bound covers small
+# cases because the spec does not state the case size.
+_BIAS_AT_RATED: Final[Mapping[str, float]] = MappingProxyType(
+    {"stable": 0.60, "mid": 0.80, "high-k": 0.85}
+)
+# Where the log ageing law holds: 1 h to about 1e5 h (11 years) after the last heat, the span
+# of published ageing curves (from memory).
+_AGEING_HELD_HOURS: Final = (1.0, 1e5)
+_HOUR: Final = 3600.0
+
+
+def class2_group(d: Dielectric) -> Class2Group | None:
+    """The ageing and DC-bias group of a class 2 ceramic, ``None`` for other kinds.
+
+    Parameters
+    ----------
+    d
+        The dielectric.
+
+    Returns
+    -------
+    {"stable", "mid", "high-k"} or None
+        ``"high-k"`` for change letters U and V (Y5V, Z5U: the highest permittivity
+        bodies), ``"mid"`` for change letter T or a high-temperature digit of 6 or below
+        (X5R, X6S, X7T), ``"stable"`` for the rest (X7R, X8R, X7S, X7P).
+
+    Notes
+    -----
+    The grouping follows the permittivity of the body, which sets both the ageing rate
+    and the DC-bias loss (common practice, from memory).
+    """
+    if d.family != "class2":
+        return None
+    change, digit = d.name[2], d.name[1]
+    if change in "UV":
+        return "high-k"
+    if change == "T" or digit in "2456":
+        return "mid"
+    return "stable"
+
+
+def class2_ageing_band(d: Dielectric) -> tuple[float, float]:
+    """Ageing rate band of a dielectric, loss per decade-hour as positive fractions.
+
+    Parameters
+    ----------
+    d
+        The dielectric.
+
+    Returns
+    -------
+    (low, high) : tuple of float
+        e.g. ``(0.01, 0.025)`` for X7R; ``(0.0, 0.0)`` for kinds that do not age this way
+        (class 1, film, electrolytic: their ageing is the policy's stated rate).
+
+    References
+    ----------
+    Published class 2 ceramic application notes (X7R about 1-2 %/decade-hour, X5R 2-5 %,
+    Y5V up to 7 %), from memory.
+    """
+    group = class2_group(d)
+    return (0.0, 0.0) if group is None else _AGEING_BAND[group]
+
+
+def class2_bias_at_rated(d: Dielectric) -> float:
+    """Bound on the DC-bias loss at the rated voltage, a positive fraction (0 if none).
+
+    Parameters
+    ----------
+    d
+        The dielectric.
+
+    Returns
+    -------
+    float
+        0.60 for the stable group (X7R), 0.80 for the mid group (X5R), 0.85 for high-K
+        (Y5V); 0 for class 1, film and electrolytic kinds.
+
+    References
+    ----------
+    Published class 2 ceramic application notes: -10…-50 % at rated voltage is common,
+    40-80 % in small cases (from memory; the bound covers small cases).
+    """
+    group = class2_group(d)
+    return 0.0 if group is None else _BIAS_AT_RATED[group]
+
+
+def _check_nonneg(what: str, v: float) -> float:
+    value = float(v)
+    if not (math.isfinite(value) and value >= 0.0):
+        raise ValueError(f"{what} must be a finite, non-negative number, got {v!r}")
+    return value
+
+
+def ageing_loss_bound(
+    d: Dielectric, hours: float, ref_hours: float = AGEING_REFERENCE_HOURS
+) -> float:
+    """Largest ageing loss of a class 2 ceramic after some hours from its last heat.
+
+    Parameters
+    ----------
+    d
+        The dielectric.
+    hours
+        Time since the last heat above the Curie point (reflow), h.
+    ref_hours
+        Time at which the tolerance holds, h (default :data:`AGEING_REFERENCE_HOURS`).
+
+    Returns
+    -------
+    float
+        ``rate_high * log10(hours / ref_hours)`` as a positive fraction of loss, 0 before
+        the reference time and for kinds without a logarithmic ageing law.
+
+    Raises
+    ------
+    ValueError
+        If ``hours`` is negative or not finite, or ``ref_hours`` is not positive.
+
+    Notes
+    -----
+    Class 2 ceramics lose capacitance linearly in the logarithm of the time since the
+    last heat; reflow soldering de-ages them, so the clock starts at assembly.
+
+    References
+    ----------
+    Published class 2 ceramic application notes (ageing per decade-hour), from memory.
+    """
+    t = _check_nonneg("hours", hours)
+    ref = _check_nonneg("ref_hours", ref_hours)
+    if ref <= 0.0:
+        raise ValueError("ref_hours must be positive")
+    rate = class2_ageing_band(d)[1]
+    if rate == 0.0 or t <= ref:
+        return 0.0
+    return rate * math.log10(t / ref)
+
+
+def bias_loss_bound(d: Dielectric, stress: float) -> float:
+    """Largest DC-bias loss of a class 2 ceramic at a DC stress ``V / V_rated``.
+
+    Parameters
+    ----------
+    d
+        The dielectric.
+    stress
+        Applied DC voltage over the rated voltage, ``>= 0``.
+
+    Returns
+    -------
+    float
+        ``min(BIAS_LOSS_CEILING, L_rated * sqrt(stress))`` as a positive fraction of loss,
+        ``L_rated`` from :func:`class2_bias_at_rated`; 0 for kinds without DC-bias loss.
+        The actual loss lies anywhere from 0 to this bound.
+
+    Raises
+    ------
+    ValueError
+        If ``stress`` is negative or not finite.
+
+    Notes
+    -----
+    Bias curves of small cases fall steeply at low stress and flatten towards the rating,
+    so a square-root envelope through the loss at rated voltage bounds them from above
+    better than a straight line does (from memory).  Beyond the rating the envelope is an
+    extrapolation, capped at :data:`BIAS_LOSS_CEILING`; :func:`bias_held` says so.
+
+    References
+    ----------
+    Published class 2 ceramic application notes (capacitance against DC bias), from memory.
+    """
+    s = _check_nonneg("stress", stress)
+    at_rated = class2_bias_at_rated(d)
+    if at_rated == 0.0 or s == 0.0:
+        return 0.0
+    return min(BIAS_LOSS_CEILING, at_rated * math.sqrt(s))
+
+
+def ageing_held(d: Dielectric) -> Held:
+    """Where the logarithmic ageing law of a class 2 ceramic holds.
+
+    Parameters
+    ----------
+    d
+        A class 2 dielectric.
+
+    Returns
+    -------
+    Held
+        The time after the last heat (s) over which the law and its rate band hold.
+    """
+    lo, hi = class2_ageing_band(d)
+    return Held(
+        what=f"{d.name} ageing of {lo * 100:g}…{hi * 100:g} %/decade-hour",
+        quantity="time after the last reflow",
+        low=_AGEING_HELD_HOURS[0] * _HOUR,
+        high=_AGEING_HELD_HOURS[1] * _HOUR,
+        kind="time",
+        source="[AN/Mem] class 2 ceramic ageing curves",
+    )
+
+
+def bias_held(d: Dielectric) -> Held:
+    """Where the DC-bias loss bound of a class 2 ceramic holds.
+
+    Parameters
+    ----------
+    d
+        A class 2 dielectric.
+
+    Returns
+    -------
+    Held
+        The DC stress ``V / V_rated`` (ratio) over which the envelope is drawn from
+        published curves: up to the rated voltage.
+    """
+    return Held(
+        what=f"{d.name} DC-bias loss bound ({class2_bias_at_rated(d) * 100:g} % at rated)",
+        quantity="DC stress (applied / rated voltage)",
+        low=0.0,
+        high=1.0,
+        kind="ratio",
+        source="[AN/Mem] class 2 ceramic bias curves",
+    )
