@@ -1,4 +1,4 @@
-"""Circuit-independent analysis engine: worst case, RSS and Monte Carlo.
+"""Circuit-independent analysis engine: worst case, RSS, Monte Carlo and driver shares.
 
 A circuit family describes its varying inputs as :class:`Factor` objects and gives a
 vectorised ``evaluate(inputs) -> outputs`` function (factor name → sample array, to
@@ -24,11 +24,15 @@ from timespec.analysis.rss import (
     rss,
     standard_uncertainty,
 )
+from timespec.analysis.sensitivity import DRIVER_METHOD, VarianceShare, variance_shares
 from timespec.analysis.stats import (
+    CAPABILITY_MIN_SAMPLES,
+    Capability,
     cpk,
     normal_cdf,
     normal_pdf,
     normal_quantile,
+    percentile_capability,
     truncated_normal_std,
     wilson_interval,
 )
@@ -41,7 +45,10 @@ from timespec.analysis.worstcase import (
 )
 
 __all__ = [
+    "CAPABILITY_MIN_SAMPLES",
+    "DRIVER_METHOD",
     "PERCENTILES",
+    "Capability",
     "Contribution",
     "Distribution",
     "Evaluate",
@@ -51,6 +58,7 @@ __all__ = [
     "MonteCarloResult",
     "OutputStats",
     "RssResult",
+    "VarianceShare",
     "call_evaluate",
     "check_factors",
     "corner_label",
@@ -63,9 +71,11 @@ __all__ = [
     "normal_cdf",
     "normal_pdf",
     "normal_quantile",
+    "percentile_capability",
     "rss",
     "standard_uncertainty",
     "truncated_normal_std",
+    "variance_shares",
     "wilson_interval",
     "worst_case",
     "worst_case_many",

@@ -24,9 +24,8 @@ random draws (common random numbers, which sharpens comparisons between designs)
 from __future__ import annotations
 
 import math
-import zlib
 from collections.abc import Callable, Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 import numpy.typing as npt
@@ -37,10 +36,16 @@ from timespec.analysis.factors import (
     FloatArray,
     call_evaluate,
     check_factors,
-    is_varying,
+)
+from timespec.analysis.sampling import FactorSampler
+from timespec.analysis.sensitivity import VarianceShare
+from timespec.analysis.stats import (
+    CAPABILITY_MIN_SAMPLES,
+    Capability,
+    percentile_capability,
+    wilson_interval,
 )
 from timespec.analysis.stats import cpk as _cpk
-from timespec.analysis.stats import wilson_interval
 
 __all__ = ["PERCENTILES", "MonteCarloResult", "OutputStats", "monte_carlo"]
 
@@ -71,14 +76,22 @@ class OutputStats:
         Fraction of all samples inside this output's window (non-finite samples count
         as outside); ``None`` without a window.
     cpk : float or None
-        ``min(high - mean, mean - low) / (3 std)`` against the window, from the finite
-        samples; an infinite window limit gives the one-sided index.  ``None`` without
-        a window or when ``std`` is 0 or not finite.
+        Normal-theory index ``min(high - mean, mean - low) / (3 std)`` against the
+        window, from the finite samples; an infinite window limit gives the one-sided
+        index.  ``None`` without a window or when ``std`` is 0 or not finite.  It
+        assumes a normal output and can contradict the yield for a skewed or bounded
+        one; prefer :attr:`capability`.
     non_finite : int
         Number of samples that are ``inf``, ``-inf`` or NaN.
     percentile_resolution : float
         Upper bound of the absolute error of the percentiles: 0 when exact, else the
         histogram bin width.
+    capability : Capability or None
+        Capability by the percentile method (ISO 22514-2 style, see
+        :func:`timespec.analysis.stats.percentile_capability`) against the window;
+        ``None`` without a window, with fewer than
+        :data:`~timespec.analysis.stats.CAPABILITY_MIN_SAMPLES` samples, or for a
+        constant output.
     """
 
     mean: float
@@ -90,6 +103,7 @@ class OutputStats:
     cpk: float | None
     non_finite: int = 0
     percentile_resolution: float = 0.0
+    capability: Capability | None = None
 
 
 @dataclass(frozen=True)
@@ -111,6 +125,12 @@ class MonteCarloResult:
         ``passed / samples``.
     yield_interval : tuple of float
         95 % Wilson score interval of the yield.
+    drivers : mapping of str to tuple of VarianceShare
+        Output name → variance-based driver shares, largest first, when the run was
+        asked for them (:func:`timespec.analysis.sensitivity.variance_shares`, kept
+        here by :func:`timespec.design.statistics.analyse_block`); empty otherwise.
+    driver_samples : int
+        Base sample count of the driver estimate (0 when there is none).
     """
 
     samples: int
@@ -119,44 +139,8 @@ class MonteCarloResult:
     passed: int
     yield_fraction: float
     yield_interval: tuple[float, float]
-
-
-class _Sampler:
-    """Draws the samples of one factor, chunk by chunk, from its own generator."""
-
-    def __init__(self, factor: Factor, seed: int) -> None:
-        self.factor = factor
-        key = zlib.crc32(factor.name.encode("utf-8"))
-        self.rng = np.random.Generator(
-            np.random.PCG64(np.random.SeedSequence(seed, spawn_key=(key,)))
-        )
-        self.varying = is_varying(factor)
-
-    def draw(self, n: int) -> FloatArray:
-        f = self.factor
-        if not self.varying:
-            return np.full(n, f.nominal, dtype=np.float64)
-        if f.distribution == "uniform":
-            u = self.rng.random(n)
-            u *= f.high - f.low
-            u += f.low
-            # Rounding can land a hair past high; keep the range closed.
-            np.minimum(u, f.high, out=u)
-            return u
-        # Truncated normal by rejection: redraw the (few) samples beyond ±sigmas.  The
-        # generator is consumed in a fixed order, so this is deterministic.
-        z = self.rng.standard_normal(n)
-        bad = np.flatnonzero(np.abs(z) > f.sigmas)
-        while bad.size:
-            z[bad] = self.rng.standard_normal(bad.size)
-            bad = bad[np.abs(z[bad]) > f.sigmas]
-        mid = 0.5 * (f.low + f.high)
-        scale = 0.5 * (f.high - f.low) / f.sigmas
-        z *= scale
-        z += mid
-        # Rounding can push a value a hair past an end; keep the range closed.
-        np.clip(z, f.low, f.high, out=z)
-        return z
+    drivers: Mapping[str, tuple[VarianceShare, ...]] = field(default_factory=dict)
+    driver_samples: int = 0
 
 
 class _Histogram:
@@ -309,6 +293,15 @@ class _Accumulator:
             minimum = maximum = math.nan
         within = None if self.window is None else self.n_within / samples
         cpk = None if self.window is None else _cpk(mean, std, *self.window)
+        capability = None
+        if self.window is not None and total >= CAPABILITY_MIN_SAMPLES and not self.n_nan:
+            capability = percentile_capability(
+                percentiles[0.135],
+                percentiles[50.0],
+                percentiles[99.865],
+                *self.window,
+                samples=total,
+            )
         resolution = self.hist.width if (self.hist is not None and ordered is None) else 0.0
         return OutputStats(
             mean=mean,
@@ -320,6 +313,7 @@ class _Accumulator:
             cpk=cpk,
             non_finite=self.n_nan + self.n_neg_inf + self.n_pos_inf,
             percentile_resolution=resolution,
+            capability=capability,
         )
 
 
@@ -407,7 +401,7 @@ def monte_carlo(
         raise ValueError(f"seed must be non-negative, got {seed}")
     facs = check_factors(factors)
     wins = _check_windows(windows)
-    samplers = [_Sampler(f, seed) for f in facs]
+    samplers = [FactorSampler(f, seed) for f in facs]
     exact = samples <= chunk
     accs: dict[str, _Accumulator] = {}
     passed = 0

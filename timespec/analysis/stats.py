@@ -8,12 +8,17 @@ engine needs nothing beyond numpy at run time.  The functions are checked agains
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 __all__ = [
+    "CAPABILITY_MIN_SAMPLES",
+    "TAIL_PERCENT",
+    "Capability",
     "cpk",
     "normal_cdf",
     "normal_pdf",
     "normal_quantile",
+    "percentile_capability",
     "truncated_normal_std",
     "wilson_interval",
 ]
@@ -302,3 +307,127 @@ def cpk(mean: float, std: float, low: float, high: float) -> float | None:
     if not (math.isfinite(mean) and math.isfinite(std)) or std <= 0.0:
         return None
     return min(high - mean, mean - low) / (3.0 * std)
+
+
+TAIL_PERCENT = 0.135
+"""Percent of a distribution beyond each end of the capability spread.
+
+``Phi(-3) = 0.13499 %`` (the normal ``±3 sigma`` tails, so the percentile method gives the
+classical index for a normal output); ISO 22514-2 uses the 0.135 % and 99.865 % points.
+"""
+
+CAPABILITY_MIN_SAMPLES = math.ceil(10.0 / (TAIL_PERCENT / 100.0))
+"""Fewest samples for a percentile capability index: 7408.
+
+The 0.135 % and 99.865 % points are estimated from the samples beyond them; with at
+least 10 samples in each tail (``N * 0.00135 >= 10``) the order statistic is a usable
+estimate.  Below this count no index is given rather than one from a normal model the
+output may not follow.
+"""
+
+
+@dataclass(frozen=True)
+class Capability:
+    """Process capability of an output against its window, by the percentile method.
+
+    Parameters
+    ----------
+    cp : float or None
+        ``(U - L) / (X99.865 - X0.135)``; ``None`` for a one-sided window.
+    cpk : float
+        The smaller of ``lower`` and ``upper`` (the one-sided index for a one-sided
+        window); ``inf`` when both limits are infinite.
+    lower, upper : float or None
+        ``(X50 - L) / (X50 - X0.135)`` and ``(U - X50) / (X99.865 - X50)``; ``None`` for
+        an infinite limit.
+    samples : int
+        Samples the percentiles came from.
+    method : str
+        ``"percentile"``.
+    """
+
+    cp: float | None
+    cpk: float
+    lower: float | None
+    upper: float | None
+    samples: int
+    method: str = "percentile"
+
+
+def _side(room: float, spread: float) -> float:
+    """``room / spread`` with the limits of a zero spread (a side with no scatter)."""
+    if spread > 0.0:
+        return room / spread
+    if room > 0.0:
+        return math.inf
+    return 0.0 if room == 0.0 else -math.inf
+
+
+def percentile_capability(
+    p_low: float,
+    median: float,
+    p_high: float,
+    low: float,
+    high: float,
+    *,
+    samples: int,
+) -> Capability | None:
+    """Capability index of any distribution from its percentiles (percentile method).
+
+    Parameters
+    ----------
+    p_low, median, p_high : float
+        The 0.135 %, 50 % and 99.865 % points of the output (``±inf`` allowed in the
+        tails: a tail of samples that never settle).
+    low, high : float
+        Window (specification) limits; ``-inf``/``+inf`` for a one-sided window.
+    samples : int
+        Samples behind the percentiles (kept in the result).
+
+    Returns
+    -------
+    Capability or None
+        ``None`` when the median is not finite or the output has no spread at all
+        (``p_low == p_high``), where the index is undefined.
+
+    Raises
+    ------
+    ValueError
+        If ``low > high``.
+
+    Notes
+    -----
+    ISO 22514-2 style percentile method, for outputs that are not normal::
+
+        Cp  = (U - L) / (X99.865 - X0.135)
+        Cpl = (X50 - L) / (X50 - X0.135),   Cpu = (U - X50) / (X99.865 - X50)
+        Cpk = min(Cpl, Cpu)
+
+    For a normal output ``X99.865 - X50 = X50 - X0.135 = 3 sigma`` and these equal the
+    classical ``(U - mu) / 3 sigma`` forms.  An infinite limit drops its side (the
+    one-sided index).  Consistency with the yield: ``Cpu >= 1`` exactly when
+    ``X99.865 <= U``, i.e. when at most 0.135 % of the samples lie above ``U``; so when
+    every sample is inside the window both sides are ``>= 1`` and the index never
+    claims less than the yield shows, and an index ``< 1`` means more than 0.135 % of
+    the samples fall beyond that limit.
+
+    References
+    ----------
+    ISO 22514-2 (process capability and performance, time-dependent process models),
+    percentile (quantile) method for non-normal distributions; ``Phi(-3) = 0.135 %``
+    from the normal distribution.
+    """
+    if low > high:
+        raise ValueError(f"window low {low!r} is above high {high!r}")
+    if not math.isfinite(median) or math.isnan(p_low) or math.isnan(p_high):
+        return None
+    if p_low == p_high:
+        return None
+    lower = _side(median - low, median - p_low) if math.isfinite(low) else None
+    upper = _side(high - median, p_high - median) if math.isfinite(high) else None
+    sides = [v for v in (lower, upper) if v is not None]
+    index = min(sides) if sides else math.inf
+    cp = None
+    if lower is not None and upper is not None:
+        cp = _side(high - low, p_high - p_low)
+    return Capability(cp=cp, cpk=index, lower=lower, upper=upper, samples=samples)

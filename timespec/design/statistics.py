@@ -4,12 +4,17 @@ The solver proves a design at worst case (every corner of the factor box).  This
 step adds how the output is *distributed* for the chosen design:
 
 * **RSS** (first-order propagation from sensitivities, JCGM 100 5.1.2) per
-  output, with each input's share of the variance, largest first, so a report
-  can say what to tighten;
+  output, with each input's first-order share of the variance (blind to
+  inputs whose slope is zero at the nominal point, such as a tempco at 25 °C);
 * **Monte Carlo** (JCGM 101): all varying inputs drawn at once, vectorised with
   numpy and chunked, seeded (the same spec and seed give byte-identical
   numbers): mean, standard deviation, percentiles, yield against the
-  requirement windows with a 95 % Wilson interval, and Cpk.
+  requirement windows with a 95 % Wilson interval, and the capability index
+  by the percentile method (valid for skewed and bounded outputs);
+* **drivers**: variance-based shares from a pick-and-freeze sample design
+  (Sobol first-order and total indices), so an input that acts through an
+  interaction (a tempco with the ambient) gets its share; the first-order RSS
+  shares stay in ``rss`` for comparison.
 
 How part values spread inside their tolerance
 ---------------------------------------------
@@ -37,12 +42,13 @@ from typing import TextIO
 
 import numpy as np
 
-from timespec.analysis import monte_carlo, rss
+from timespec.analysis import monte_carlo, rss, variance_shares
 from timespec.design.result import BlockResult, Result
 from timespec.families import family
 
 __all__ = [
     "CHUNK",
+    "DRIVER_SAMPLES",
     "EXACT_UP_TO",
     "Progress",
     "analyse",
@@ -62,6 +68,10 @@ EXACT_UP_TO = 65_536
 #: one-shot), large enough that Python overhead is negligible; memory stays
 #: bounded whatever the sample count.
 CHUNK = 16_384
+#: Base sample count of the variance-based driver shares (``N * (k + 2)`` model
+#: evaluations for ``k`` varying inputs); fixed, so a seed always reproduces the same
+#: shares, and large enough that a dominant share has a standard error near 1 %.
+DRIVER_SAMPLES = 8192
 
 
 def chunk_size(samples: int) -> int:
@@ -129,7 +139,9 @@ def analyse_block(
     -------
     BlockResult
         A copy with ``rss`` (output → :class:`~timespec.analysis.RssResult`) and
-        ``monte_carlo`` filled; the input unchanged when there is no design.
+        ``monte_carlo`` filled, the latter with the variance-based driver shares
+        (``monte_carlo.drivers``) and the percentile capability of each windowed
+        output; the input unchanged when there is no design.
 
     Raises
     ------
@@ -143,13 +155,20 @@ def analyse_block(
     ``u = h/√3`` for a uniform input of half-range ``h`` (the truncated-normal
     standard deviation for a normal one).  Monte Carlo: yield = share of samples
     with every required output inside its window; the interval is the 95 %
-    Wilson score interval; ``Cpk = min(USL − μ, μ − LSL) / 3σ``.
+    Wilson score interval.  Capability by the percentile method,
+    ``Cpk = min((U − X50)/(X99.865 − X50), (X50 − L)/(X50 − X0.135))``, from at
+    least 7408 samples (:func:`timespec.analysis.stats.percentile_capability`);
+    the normal-theory ``min(USL − μ, μ − LSL) / 3σ`` stays in ``cpk``.  Drivers:
+    :func:`timespec.analysis.sensitivity.variance_shares` on
+    :data:`DRIVER_SAMPLES` base samples, which credits a tempco with its
+    interaction with the ambient (first-order RSS gives it 0 % at 25 °C).
 
     References
     ----------
     JCGM 100:2008 (GUM) 4.3.7 and 5.1.2; JCGM 101:2008 (propagation of
     distributions by a Monte Carlo method); E. B. Wilson (1927) for the interval;
-    ISO 22514-2 for Cpk.
+    ISO 22514-2 for the capability indices; Saltelli et al. (2010), Jansen (1999)
+    and Owen (2014) for the driver shares.
     """
     best = result.best
     if best is None:
@@ -178,6 +197,8 @@ def analyse_block(
             chunk=chunk_size(n),
             progress=progress,
         )
+        drivers = variance_shares(factors, model, samples=DRIVER_SAMPLES, seed=s)
+    mc = dataclasses.replace(mc, drivers=drivers, driver_samples=DRIVER_SAMPLES)
     return dataclasses.replace(result, rss=spread, monte_carlo=mc)
 
 

@@ -1,10 +1,11 @@
 """The JSON document of a solved spec: a versioned contract other tools rely on.
 
-Layout (``format_version`` 1)::
+Layout (``format_version`` 1, ``format_minor`` 1)::
 
     {
       "format": "timespec-result",
       "format_version": 1,
+      "format_minor": 1,
       "timespec_version": "0.1.0",
       "spec": "examples/burn_in_rack.tspec",
       "ok": true,
@@ -25,7 +26,9 @@ Layout (``format_version`` 1)::
           "outputs": [ {"name", "unit", "required", "nominal", "worst_case", "meets"}, ... ],
           "findings": [{"severity", "code", "message"}],
           "statistics": {"rss": {...}, "monte_carlo": {...}} | null,
-          "contributors": {"width": [{"name", "label", "share", "sensitivity"}]},
+          "contributors": {"width": [{"name", "label", "share", "sensitivity",
+                                      "rss_share", "first_order", "total",
+                                      "first_order_se", "total_se"}]},
           "alternatives": [{"circuit", "parts", "outputs", "reason"}],
           "fixes": [{"kind", "what", "cost", "worst_case"}],
           "notes": ["..."]
@@ -38,6 +41,27 @@ fractions, so 50 ppm is 5e-05).  ``quantity``/``required``/``nominal``/
 ``worst_case`` describe the block's first requirement; ``outputs`` lists every
 computed quantity.  Infinite values (a bound, or a threshold never reached)
 are written as ``null``.
+
+``statistics.monte_carlo.outputs.<name>`` holds ``mean``, ``std``, ``min``,
+``max``, ``percentiles``, ``within``, ``cpk``, ``cpk_normal`` and ``capability``
+(``{"method": "percentile", "cp", "cpk", "lower", "upper", "samples"}`` or
+``null``); ``statistics.monte_carlo.drivers`` is ``{"method", "samples"}``.
+
+Format minor versions (each keeps every key of the one before):
+
+* **1.0**: the first layout.
+* **1.1**: ``format_minor`` added.  ``cpk`` is now the percentile-method index
+  (ISO 22514-2 style, from at least 7408 samples, else ``null``), which holds
+  for skewed and bounded outputs and never claims less than 1 when every
+  sample is inside the window; the former normal-theory value
+  ``min(U − μ, μ − L) / 3σ`` moved to ``cpk_normal``, and ``capability`` gives
+  both sides and ``Cp``.  ``contributors[...].share`` is now the variance-based
+  driver share ``(S_i + S_Ti)/2`` normalised to sum to 1 (Sobol first-order and
+  total indices from a pick-and-freeze design), which credits inputs that act
+  through interactions, such as a tempco with the ambient, that the
+  first-order share (still given, as ``rss_share``) reads as 0; the list is
+  ordered by it.  ``first_order``, ``total`` and their standard errors are
+  added.  ``statistics.monte_carlo.drivers`` names the method.
 """
 
 from __future__ import annotations
@@ -48,14 +72,18 @@ from collections.abc import Mapping
 from typing import Any
 
 from timespec._version import __version__
+from timespec.analysis import DRIVER_METHOD, Capability
 from timespec.design.result import BlockResult, Candidate, OutputResult, Result
 from timespec.parts.part import Part
 from timespec.units import kind_symbol
 
-__all__ = ["FORMAT_VERSION", "result_to_dict", "result_to_json"]
+__all__ = ["FORMAT_MINOR", "FORMAT_VERSION", "result_to_dict", "result_to_json"]
 
 #: Bumped when a key changes meaning or disappears; adding keys does not bump it.
 FORMAT_VERSION = 1
+#: Bumped when keys are added or a value is estimated by a sounder method (see the
+#: module notes); a reader of ``format_version`` 1 keeps working.
+FORMAT_MINOR = 1
 
 
 def _num(x: float) -> float | None:
@@ -136,29 +164,86 @@ def _statistics(b: BlockResult) -> dict[str, Any] | None:
                     "max": _num(s.maximum),
                     "percentiles": {f"{k:g}": _num(v) for k, v in s.percentiles.items()},
                     "within": s.within,
-                    "cpk": _num(s.cpk) if s.cpk is not None else None,
+                    "cpk": _num(s.capability.cpk) if s.capability is not None else None,
+                    "cpk_normal": _num(s.cpk) if s.cpk is not None else None,
+                    "capability": _capability(s.capability),
                 }
                 for name, s in mc.outputs.items()
             },
+            "drivers": (
+                {"method": DRIVER_METHOD, "samples": mc.driver_samples} if mc.drivers else None
+            ),
         }
     else:
         out["monte_carlo"] = None
     return out
 
 
-def _contributors(b: BlockResult) -> dict[str, list[dict[str, Any]]]:
+def _capability(c: Capability | None) -> dict[str, Any] | None:
+    if c is None:
+        return None
     return {
-        name: [
+        "method": c.method,
+        "cp": _num(c.cp) if c.cp is not None else None,
+        "cpk": _num(c.cpk),
+        "lower": _num(c.lower) if c.lower is not None else None,
+        "upper": _num(c.upper) if c.upper is not None else None,
+        "samples": c.samples,
+    }
+
+
+def _contributors(b: BlockResult) -> dict[str, list[dict[str, Any]]]:
+    drivers = b.monte_carlo.drivers if b.monte_carlo is not None else {}
+    out: dict[str, list[dict[str, Any]]] = {}
+    for name, r in b.rss.items():
+        first = {c.name: c for c in r.contributions}
+        shares = drivers.get(name)
+        if not shares:  # no variance decomposition: the first-order shares
+            out[name] = [
+                {
+                    "name": c.name,
+                    "label": c.label,
+                    "share": _num(c.share),
+                    "sensitivity": _num(c.sensitivity),
+                    "rss_share": _num(c.share),
+                }
+                for c in r.contributions
+            ]
+            continue
+        rows = []
+        for d in shares:
+            c = first.get(d.name)
+            rows.append(
+                {
+                    "name": d.name,
+                    "label": d.label,
+                    "share": _num(d.share),
+                    "sensitivity": _num(c.sensitivity) if c is not None else None,
+                    "rss_share": _num(c.share) if c is not None else None,
+                    "first_order": _num(d.first_order),
+                    "total": _num(d.total),
+                    "first_order_se": _num(d.first_order_se),
+                    "total_se": _num(d.total_se),
+                }
+            )
+        # inputs that do not vary: in the first-order list, not in the decomposition
+        rows += [
             {
                 "name": c.name,
                 "label": c.label,
-                "share": _num(c.share),
+                "share": 0.0,
                 "sensitivity": _num(c.sensitivity),
+                "rss_share": _num(c.share),
+                "first_order": 0.0,
+                "total": 0.0,
+                "first_order_se": 0.0,
+                "total_se": 0.0,
             }
             for c in r.contributions
+            if all(c.name != d.name for d in shares)
         ]
-        for name, r in b.rss.items()
-    }
+        out[name] = rows
+    return out
 
 
 def block_to_dict(b: BlockResult) -> dict[str, Any]:
@@ -244,6 +329,7 @@ def result_to_dict(result: Result) -> dict[str, Any]:
     return {
         "format": "timespec-result",
         "format_version": FORMAT_VERSION,
+        "format_minor": FORMAT_MINOR,
         "timespec_version": __version__,
         "spec": result.spec.path,
         "ok": result.ok,

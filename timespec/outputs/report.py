@@ -14,7 +14,7 @@ from collections.abc import Mapping, Sequence
 from typing import Literal
 
 from timespec._version import __version__
-from timespec.analysis import RssResult
+from timespec.analysis import CAPABILITY_MIN_SAMPLES, Capability
 from timespec.design.result import BlockResult, Candidate, OutputResult, Result
 from timespec.numbers import (
     format_interval,
@@ -94,7 +94,7 @@ def _output_lines(out: OutputResult, result: BlockResult) -> list[str]:
             ("highest", out.high_corner, out.high_at),
         ):
             lines += textwrap.wrap(
-                f"{word} at: {_corner_text(corner, at, result, rss)}",
+                f"{word} at: {_corner_text(corner, at, result, _shares(result, out.name))}",
                 width=_WIDTH,
                 initial_indent=pad + "  ",
                 subsequent_indent=pad + "    ",
@@ -112,8 +112,8 @@ def _output_lines(out: OutputResult, result: BlockResult) -> list[str]:
                 f"{format_quantity(mc.std, out.kind, ratio=ratio)}, 99.73 % within "
                 f"{_q(p_lo, out)} … {_q(p_hi, out)}"
             )
-            if mc.cpk is not None and out.required is not None:
-                text += f", Cpk {mc.cpk:.3g}"
+            if out.required is not None:
+                text += _capability_text(mc.capability, result)
             parts.append(text)
         lines += textwrap.wrap(
             "; ".join(parts), width=_WIDTH, initial_indent=pad, subsequent_indent=pad + "  "
@@ -121,13 +121,55 @@ def _output_lines(out: OutputResult, result: BlockResult) -> list[str]:
     return lines
 
 
+def _shares(result: BlockResult, name: str) -> dict[str, float] | None:
+    """Driver share of each input in one output's variance, by factor name.
+
+    The variance-based shares of the Monte Carlo step when present (they credit
+    interactions such as a tempco with the ambient), else the first-order RSS shares.
+    """
+    mc = result.monte_carlo
+    drivers = mc.drivers.get(name) if mc is not None else None
+    if drivers:
+        return {d.name: d.share for d in drivers}
+    rss = result.rss.get(name)
+    if rss is None:
+        return None
+    return {c.name: c.share for c in rss.contributions}
+
+
+def _drivers(result: BlockResult, name: str) -> list[tuple[str, float]]:
+    """``(label, share)`` of one output's drivers, largest first (see :func:`_shares`)."""
+    mc = result.monte_carlo
+    drivers = mc.drivers.get(name) if mc is not None else None
+    if drivers:
+        return [(d.label, d.share) for d in drivers]
+    rss = result.rss.get(name)
+    return [(c.label, c.share) for c in rss.contributions] if rss is not None else []
+
+
+def _capability_text(cap: Capability | None, result: BlockResult) -> str:
+    """The capability index (percentile method) for the statistics line."""
+    mc = result.monte_carlo
+    if cap is None:
+        if mc is not None and mc.samples < CAPABILITY_MIN_SAMPLES:
+            return f", no Cpk below {CAPABILITY_MIN_SAMPLES} samples"
+        return ""
+    if cap.lower is None and cap.upper is None:
+        return ""
+    side = ""
+    if cap.lower is None:
+        side = " upper"
+    elif cap.upper is None:
+        side = " lower"
+    return f", Cpk{side} {cap.cpk:.3g} (percentiles)"
+
+
 def _corner_text(
-    label: str, at: Mapping[str, float], result: BlockResult, rss: RssResult | None
+    label: str, at: Mapping[str, float], result: BlockResult, share: Mapping[str, float] | None
 ) -> str:
     """The corner in words, keeping only inputs that carry at least 1 % of the variance."""
-    if rss is None or not at or not result.factors:
+    if share is None or not at or not result.factors:
         return label
-    share = {c.name: c.share for c in rss.contributions}
     keep = [f for f in result.factors if f.name in at and share.get(f.name, 0.0) >= 0.01]
     if not keep:
         return label
@@ -146,16 +188,27 @@ def _corner_text(
     return ", ".join(words) + (f" (and {rest} minor inputs)" if rest else "")
 
 
+def _pct(share: float) -> str:
+    """A driver share in percent, two significant digits, never rounded to 0 %."""
+    if share < 1e-4:
+        return "<0.01 %"
+    return f"{share * 100:.2g} %"
+
+
 def _contributors(result: BlockResult) -> list[str]:
     lines: list[str] = []
     for req in result.block.requirements:
-        rss = result.rss.get(req.quantity)
-        if rss is None or not rss.contributions:
-            continue
-        top = [c for c in rss.contributions if c.share >= 0.005][:6]
+        shares = [(label, v) for label, v in _drivers(result, req.quantity) if v > 0.0]
+        top = [(label, v) for label, v in shares if v >= 0.005][:6]
         if not top:
             continue
-        text = f"{req.quantity}: " + " · ".join(f"{c.label} {c.share * 100:.0f} %" for c in top)
+        text = f"{req.quantity}: " + " · ".join(f"{label} {_pct(v)}" for label, v in top)
+        rest = shares[len(top) :]
+        named = [(label.split(" (")[0], v) for label, v in rest if v >= 1e-4]
+        if named:
+            text += " · also " + ", ".join(f"{label} {_pct(v)}" for label, v in named)
+        if len(rest) > len(named):
+            text += f" (and {len(rest) - len(named)} below 0.01 %)"
         lines += _wrap("drivers" if not lines else "", text, indent=13)
     return lines
 
