@@ -47,7 +47,7 @@ def test_bias_relation() -> None:
 def _delay(life: str, rated: str, dielectric_name: str = "X7R") -> str:
     return (
         "delay por:\n  delay 5 ms to 200 ms\n  supply 5 V ±5%\n"
-        f"  threshold 0.4 to 0.6 of supply\n{life}"
+        f"  threshold 0.4 to 0.6 of supply\n  leakage 1 pA max\n{life}"
         f"  use R 22k1 1%, C 2u2 {dielectric_name} 10%{rated}\n"
     )
 
@@ -60,15 +60,17 @@ def _low(text: str) -> float:
 
 def test_x7r_worst_case_shows_the_losses() -> None:
     # The delay is C times a factor independent of C (t = R*C*ln q, RC charge law [Txt]),
-    # so the worst-case low scales exactly by (1 - ageing loss)(1 - bias loss).
+    # so the worst-case low scales by (1 - ageing loss)(1 - bias loss).  Not exactly: the
+    # node's stray (at most 15 pF beside 2.2 uF, 7e-6 of C) and the 1 pA leakage stay put,
+    # which moves the ratios by less than 1e-6; hence rel=1e-5.
     aged = _low(_delay("  life 10 years\n", " rated 16 V"))
     new = _low(_delay("", " rated 16 V"))
     far = _low(_delay("", " rated 1000000 V"))
     age = 0.025 * math.log10(HOURS_10_YEARS / 24.0)  # X7R high end, from 24 h after reflow
     bias_16 = 0.6 * math.sqrt(5.25 / 16.0)  # highest supply over the rating
     bias_far = 0.6 * math.sqrt(5.25 / 1e6)
-    assert aged / new == pytest.approx(1.0 - age, rel=1e-9)
-    assert new / far == pytest.approx((1.0 - bias_16) / (1.0 - bias_far), rel=1e-9)
+    assert aged / new == pytest.approx(1.0 - age, rel=1e-5)
+    assert new / far == pytest.approx((1.0 - bias_16) / (1.0 - bias_far), rel=1e-5)
 
 
 def test_default_rating_is_twice_the_supply() -> None:

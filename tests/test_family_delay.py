@@ -24,7 +24,16 @@ from timespec.families.protocol import FloatArray
 from timespec.families.rcscale import aim_nominal
 from timespec.language.assemble import parse
 from timespec.model import Block, Window
+from timespec.parts.devices import BOARD_STRAY, LOGIC_INPUT_CAPACITANCE
 from timespec.parts.part import Design
+
+#: Nominal stray at the node: the middle of the generic CMOS input pin band plus the
+#: board band (timespec.parts.devices: input 2…10 pF [DS], board 1…5 pF [DS/Mem]).
+STRAY_NOM = 0.5 * (LOGIC_INPUT_CAPACITANCE[0] + BOARD_STRAY[0]) + 0.5 * (
+    LOGIC_INPUT_CAPACITANCE[1] + BOARD_STRAY[1]
+)
+STRAY_MAX = LOGIC_INPUT_CAPACITANCE[1] + BOARD_STRAY[1]
+STRAY_MIN = LOGIC_INPUT_CAPACITANCE[0] + BOARD_STRAY[0]
 
 RACK = """
 delay slot_reset:
@@ -81,10 +90,12 @@ def test_registered() -> None:
 
 def test_nominal_is_first_order_rc_law() -> None:
     # First-order RC charging law (any circuit-theory handbook): from 0 V toward V,
-    # the node reaches k·V after t = R·C·ln(1/(1 − k)).
+    # the node reaches k·V after t = R·C·ln(1/(1 − k)); C includes the nominal stray.
     blk = block_of("delay d:\n supply 5 V\n delay 10 ms to 30 ms\n threshold 0.6 of supply\n")
     r, c = 200e3, 100e-9
-    assert nominal_delay(blk, r, c) == pytest.approx(r * c * math.log(1 / (1 - 0.6)), rel=1e-12)
+    assert nominal_delay(blk, r, c) == pytest.approx(
+        r * (c + STRAY_NOM) * math.log(1 / (1 - 0.6)), rel=1e-12
+    )
 
 
 def test_nominal_with_start_voltage() -> None:
@@ -92,12 +103,15 @@ def test_nominal_with_start_voltage() -> None:
     # handbook); threshold in volts here.
     blk = block_of("delay d:\n supply 5 V\n delay 10 ms to 30 ms\n threshold 3 V\n start 0.5 V\n")
     r, c = 200e3, 100e-9
-    assert nominal_delay(blk, r, c) == pytest.approx(r * c * math.log(4.5 / 2.0), rel=1e-12)
+    assert nominal_delay(blk, r, c) == pytest.approx(
+        r * (c + STRAY_NOM) * math.log(4.5 / 2.0), rel=1e-12
+    )
 
 
 def test_leakage_against_ode() -> None:
     # Independent route: integrate C dv/dt = (V − v)/R − i with scipy (numerical ODE
-    # integration) and compare with the family's worst-case high (full leakage drain).
+    # integration) and compare with the family's worst-case high (full leakage drain,
+    # largest stray at the node added to C).
     text = (
         "delay d:\n supply 5 V\n delay 10 ms to 60 ms\n threshold 0.7 of supply\n"
         " leakage 1 uA max\n resistors E96 0%, 1k to 1M\n capacitors E12 0% C0G\n"
@@ -112,7 +126,7 @@ def test_leakage_against_ode() -> None:
 
     hit.terminal = True  # type: ignore[attr-defined]
     sol = solve_ivp(
-        lambda t, y: [((5.0 - y[0]) / r - i) / c],
+        lambda t, y: [((5.0 - y[0]) / r - i) / (c + STRAY_MAX)],
         (0.0, 1.0),
         [0.0],
         rtol=1e-11,
@@ -150,11 +164,14 @@ def test_threshold_in_volts_equals_fraction_on_a_fixed_supply() -> None:
 
 
 def test_threshold_in_volts_on_a_varying_supply_warns_and_spreads_more() -> None:
+    # 1 pA of leakage (negligible: i·R ~ 0.15 µV) replaces the assumed ±1 µA input bound.
     ratio = block_of(
         "delay d:\n supply 4.5 V to 5.5 V\n delay 10 ms to 30 ms\n threshold 0.5 to 0.6 of supply\n"
+        " leakage 1 pA max\n"
     )
     volts = block_of(
         "delay d:\n supply 4.5 V to 5.5 V\n delay 10 ms to 30 ms\n threshold 2.5 V to 3 V\n"
+        " leakage 1 pA max\n"
     )
     cr = evaluate_design(ratio, design(ratio, 150e3, 68e-9))
     cv = evaluate_design(volts, design(volts, 150e3, 68e-9))
@@ -165,7 +182,9 @@ def test_threshold_in_volts_on_a_varying_supply_warns_and_spreads_more() -> None
     # with volts is strictly wider.
     wr, wv = cr.output("delay"), cv.output("delay")
     assert wv.high - wv.low > wr.high - wr.low
-    assert wr.low == pytest.approx(150e3 * 0.99 * 68e-9 * 0.95 * math.log(1 / 0.5), rel=1e-3)
+    assert wr.low == pytest.approx(
+        150e3 * 0.99 * (68e-9 * 0.95 + STRAY_MIN) * math.log(1 / 0.5), rel=1e-3
+    )
 
 
 def test_infeasible_gives_closest_design() -> None:
@@ -237,10 +256,12 @@ def test_aim_centres_the_worst_case() -> None:
     c=st.floats(1e-10, 1e-6),
 )
 def test_delay_scales_with_capacitance(k: float, r: float, c: float) -> None:
-    # t = R·C·ln(...) with the drain entering only through i·R (RC law with a Thevenin
-    # shift, any circuit-theory handbook): scaling C by k scales the delay by k.
+    # t = R·(C + Cs)·ln(...) with the drain entering only through i·R (RC law with a
+    # Thevenin shift, any circuit-theory handbook): the delay is proportional to C + Cs.
     blk = block_of(RACK)
-    assert nominal_delay(blk, r, k * c) == pytest.approx(k * nominal_delay(blk, r, c), rel=1e-9)
+    assert nominal_delay(blk, r, k * c) / (k * c + STRAY_NOM) == pytest.approx(
+        nominal_delay(blk, r, c) / (c + STRAY_NOM), rel=1e-9
+    )
 
 
 @settings(max_examples=25, deadline=None)

@@ -49,9 +49,13 @@ def design(block: Block, r: float, c: float) -> Design:
     )
 
 
-def nominal(block: Block, r: float, c: float) -> dict[str, float]:
+def nominal(block: Block, r: float, c: float, *, ideal: bool = True) -> dict[str, float]:
+    """Outputs at the nominal point; ``ideal`` sets the stray and the gate delay to 0."""
     fam = Relaxation()
     x = {f.name: np.array([f.nominal]) for f in fam.factors(block, design(block, r, c))}
+    if ideal:
+        x["stray"] = np.zeros(1)
+        x["gate.delay"] = np.zeros(1)
     return {k: float(v[0]) for k, v in fam.evaluate(block, "")(x).items()}
 
 
@@ -96,14 +100,15 @@ def physical_sweep(block: Block, dsg: Design, n: int, seed: int) -> dict[str, Fl
     fam = Relaxation()
     parts = {f.name: f for f in fam.factors(block, dsg)}
     x = box_sweep(
-        [f for name, f in parts.items() if not name.startswith(("gate.", "leak"))], k, seed
+        [f for name, f in parts.items() if not name.startswith(("gate.h", "gate.c", "leak"))],
+        k,
+        seed,
     )
     i_lo, i_hi = parts["leak"].low, parts["leak"].high
     i = rng.uniform(i_lo, i_hi, k)
     i = np.where(rng.random(k) < 0.3, np.where(rng.random(k) < 0.5, i_lo, i_hi), i)
-    r, c, v = apply_part(x, "R"), apply_part(x, "C"), x["supply"]
-    t_h = rx.high_time(r, c, v, p * v, m * v, i)
-    t_l = rx.low_time(r, c, 0.0, p * v, m * v, i)
+    r, c, v = apply_part(x, "R"), apply_part(x, "C") + x["stray"], x["supply"]
+    t_h, t_l = rx.delayed_times(r, c, v, 0.0, p * v, m * v, x["gate.delay"], i)
     t = t_h + t_l
     return {"period": t, "frequency": 1.0 / t, "high": t_h, "low": t_l, "duty": t_h / t}
 
@@ -186,9 +191,13 @@ def test_worst_case_reaches_the_minimum_hysteresis_kink() -> None:
     th = thresholds(blk)
     f = [
         x
-        if x.group != "R" and x.group != "C" and x.name != "leak"
+        if x.group != "R" and x.group != "C" and x.name not in ("leak", "stray", "gate.delay")
         else Factor(x.name, x.label, x.nominal, x.nominal, x.nominal, "fixed", group=x.group)
         for x in fam.factors(blk, design(blk, r, c))
+    ]
+    f = [
+        Factor(x.name, x.label, 0.0, 0.0, 0.0, "fixed") if x.name in ("stray", "gate.delay") else x
+        for x in f
     ]
     ex = worst_case(f, fam.evaluate(blk, ""))["period"]
     m = th.fall_high

@@ -8,18 +8,24 @@ reset, enabling a regulator ...).
 Modelled (see :mod:`timespec.physics.rcdelay`): part tolerance, tempco or
 dielectric drift and ageing; the supply window; the input threshold, given as a
 share of the supply (it then tracks the supply) or in volts (it does not); the
-capacitor voltage at the start (``start``, default 0 V); and a drain current at
-the node (``leakage``: capacitor, board and input leakage together), which pulls
-the node's final value down by ``i·R``.
+capacitor voltage at the start (``start``, default 0 V); a signed leakage current
+at the node, which moves the node's final value by ``−i·R``: the ``leakage``
+statement bounds capacitor, board and input leakage together (either sign), and
+without it the watching input's datasheet bound is assumed, ±1 µA for a generic
+CMOS input or the ``gate`` class's bound (see :mod:`timespec.families.logicinput`;
+an electrolytic's own leakage adds to the drain); the stray capacitance of the
+input pin and the board (``stray``, added to C); and, with a ``gate`` class, the
+gate's propagation delay (``gate.delay``, added to the delay).
 
 Not modelled, and said so in the findings: the supply's own rise time (the
 supply is taken to step up at once) and the discharge of the capacitor between
 power cycles.
 
 Every output is monotone in every factor (the delay grows with R, C, the
-threshold and the drain; with a ratiometric threshold the sign of its change with
-the supply is fixed by ``(1 − k)·V0 − k·i·R``, with a threshold in volts it falls
-as the supply rises), so the corners of the factor box give the exact worst case.
+stray, the gate delay, the threshold and the drain; with a ratiometric threshold
+the sign of its change with the supply is fixed by ``(1 − k)·V0 − k·i·R``, with a
+threshold in volts it falls as the supply rises), so the corners of the factor box
+give the exact worst case.
 """
 
 from __future__ import annotations
@@ -30,9 +36,17 @@ from collections.abc import Mapping
 import numpy as np
 
 from timespec.analysis import Factor
-from timespec.families.capacitors import dielectric_findings, node_leakage
+from timespec.families.capacitors import dielectric_findings
 from timespec.families.goals import declare_monotone
 from timespec.families.inputs import apply_part, condition_factors, part_factors
+from timespec.families.logicinput import (
+    gate_delay_band,
+    gate_stretches,
+    leakage_note,
+    node_leakage_band,
+    stray_band,
+    stray_finding,
+)
 from timespec.families.protocol import Evaluate, Finding, FloatArray, Inputs, Output
 from timespec.families.rcscale import rc_candidates
 from timespec.model import Block, Window
@@ -66,19 +80,28 @@ def _threshold_volts(block: Block) -> tuple[float, float]:
 
 #: Factors in which the delay never falls, whatever the block: more C (tolerance,
 #: ageing, class-2 or electrolytic drift; not the tempco, which multiplies ``T − 25``
-#: and so changes sign across the ambient range).  ``t = R·C·ln(q)`` with ``q ≥ 1``
-#: (or ``inf``) independent of C, so ``t`` is C times a non-negative constant.
-DELAY_RISING_ALWAYS = frozenset({"C.tol", "C.age", "C.drift"})
+#: and so changes sign across the ambient range; the stray, which adds to C) and
+#: more gate delay.  ``t = t_pd + R·(C + Cs)·ln(q)`` with ``q ≥ 1`` (or ``inf``)
+#: independent of C, Cs and t_pd, so ``t`` rises with each of them.
+DELAY_RISING_ALWAYS = frozenset({"C.tol", "C.age", "C.drift", "stray", "gate.delay"})
 #: Factors in which the delay never falls once the start voltage lies below every
 #: threshold of the box (``v0 < Vth``).  Write ``V' = V − i·R`` (``i ≥ 0``); then
 #: ``q = (V' − v0)/(V' − Vth) = 1 + (Vth − v0)/(V' − Vth)`` for ``V' > Vth`` and
 #: ``t = inf`` for ``V' ≤ Vth`` (and for ``V' ≤ v0``): ``t`` never rises with ``V'``
-#: and never falls with ``Vth``.  More R (tolerance, ageing) multiplies the
-#: non-negative ``ln(q)`` by a larger ``R·C`` and lowers ``V'``; more drain lowers
+#: and never falls with ``Vth``, for either sign of ``i``.  More drain lowers
 #: ``V'``; a higher threshold (a share of a positive supply or volts) raises ``Vth``.
+#: More R (tolerance, ageing) with ``i ≥ 0`` multiplies the non-negative ``ln(q)`` by
+#: a larger ``R·C`` and lowers ``V'``.  With ``i = −j < 0`` (current into the node),
+#: write ``a = Vth − v0 > 0``, ``b = V − Vth``: ``t/C = f(R) = R·ln(1 + x)``,
+#: ``x = a/(b + j·R)``, and ``f'(R) = ln(1 + x) − x/(1 + x)·j·R/(b + j·R)``, which is
+#: ``> 0`` when ``b > 0`` because ``ln(1 + x) > x/(1 + x)`` and ``j·R/(b + j·R) < 1``;
+#: so R is declared only when the threshold lies below the supply at every corner or
+#: no current flows into the node (see :data:`DELAY_RISING_R`).
 #: With ``v0 ≥ Vth`` the node may discharge down to the threshold instead, where
 #: none of this holds, so nothing of this set is declared then.
-DELAY_RISING_BELOW = frozenset({"R.tol", "R.age", "leak", "threshold"})
+DELAY_RISING_BELOW = frozenset({"leak", "threshold"})
+#: The resistor's factors, rising under the condition above.
+DELAY_RISING_R = frozenset({"R.tol", "R.age"})
 
 
 def _threshold_volt_range(block: Block) -> tuple[float, float]:
@@ -91,15 +114,17 @@ def _threshold_volt_range(block: Block) -> tuple[float, float]:
     return min(corners), max(corners)
 
 
-def declarations(block: Block, leak: float) -> tuple[frozenset[str], frozenset[str]]:
+def declarations(
+    block: Block, leak_low: float, leak_high: float
+) -> tuple[frozenset[str], frozenset[str]]:
     """Names of the factors in which the delay provably rises, and falls, over the box.
 
     Parameters
     ----------
     block
         The block.
-    leak
-        The node's leakage bound, A (0: no ``leak`` factor).
+    leak_low, leak_high
+        The node's signed leakage band, A (positive drains the node).
 
     Returns
     -------
@@ -116,10 +141,11 @@ def declarations(block: Block, leak: float) -> tuple[frozenset[str], frozenset[s
     * threshold a share ``k`` of the supply (``0 < k < 1``, ``V > 0``):
       ``q = (V − i·R − v0)/((1 − k)·V − i·R)`` has
       ``dq/dV ∝ (1 − k)·v0 − k·i·R``, negative everywhere when ``v0 < 0`` (the
-      delay falls), positive everywhere when ``v0 > 0`` and there is no drain (it
-      rises).  With ``v0 = 0`` the delay does not depend on the supply without a
-      drain, so its value at either end differs only by rounding: not declared,
-      nor where the sign of ``dq/dV`` changes inside the box.
+      delay falls) unless current flows into the node (``i < 0``), positive
+      everywhere when ``v0 > 0`` and there is no drain (it rises).  With
+      ``v0 = 0`` the delay does not depend on the supply without a drain, so
+      its value at either end differs only by rounding: not declared, nor where
+      the sign of ``dq/dV`` changes inside the box.
 
     References
     ----------
@@ -134,12 +160,16 @@ def declarations(block: Block, leak: float) -> tuple[frozenset[str], frozenset[s
     s = block.conditions.supply
     if start < vth_lo and (win.kind != "ratio" or s.low > 0.0):
         rising |= DELAY_RISING_BELOW
+        _, vth_hi = _threshold_volt_range(block)
+        below_supply = vth_hi < s.low if win.kind != "ratio" else win.high < 1.0
+        if leak_low >= 0.0 or below_supply:
+            rising |= DELAY_RISING_R
         if win.kind != "ratio":
             falling.add("supply")
         elif win.low > 0.0 and win.high < 1.0 and s.low > 0.0:
-            if start < 0.0:
+            if start < 0.0 and leak_low >= 0.0:
                 falling.add("supply")
-            elif start > 0.0 and leak <= 0.0:
+            elif start > 0.0 and leak_high <= 0.0:
                 rising.add("supply")
     return frozenset(rising), frozenset(falling)
 
@@ -179,10 +209,13 @@ class Delay:
         -------
         list of Factor
             Parts, ambient and supply, ``threshold`` (a share of the supply or
-            volts, uniform over its window, nominal at its centre) and ``leak``
-            (0 … the ``leakage`` bound, A) when a leakage is given; the factors
-            in which the delay is provably monotone say so (see
-            :func:`declarations`), which shrinks the worst-case search.
+            volts, uniform over its window, nominal at its centre), ``leak``
+            (signed, A: the stated ``leakage`` or the assumed input bound, both
+            signs, see :func:`~timespec.families.logicinput.node_leakage_band`),
+            ``stray`` (F, input pin and board) and, with a gate class,
+            ``gate.delay`` (s); the factors in which the delay is provably
+            monotone say so (see :func:`declarations`), which shrinks the
+            worst-case search.
         """
         out: list[Factor] = []
         for part in design.parts:
@@ -194,19 +227,46 @@ class Delay:
         else:
             label = f"input threshold ({win.low:g}…{win.high:g} V)"
         out.append(Factor("threshold", label, win.centre, win.low, win.high, group="input"))
-        leak = node_leakage(block, design)
-        if leak > 0:
+        leak = node_leakage_band(block, design, block.gate)
+        if leak.high > leak.low:
             out.append(
                 Factor(
                     "leak",
-                    f"node leakage (0…{format_quantity(leak, 'current')})",
+                    f"node leakage ({format_quantity(leak.low, 'current')}…"
+                    f"{format_quantity(leak.high, 'current')}"
+                    f"{', assumed' if leak.assumed else ''})",
                     0.0,
-                    0.0,
-                    leak,
+                    leak.low,
+                    leak.high,
                     group="leakage",
                 )
             )
-        rising, falling = declarations(block, leak)
+        cs_lo, cs_hi = stray_band(block.gate)
+        out.append(
+            Factor(
+                "stray",
+                f"input and board stray ({format_quantity(cs_lo, 'capacitance')}…"
+                f"{format_quantity(cs_hi, 'capacitance')})",
+                0.5 * (cs_lo + cs_hi),
+                cs_lo,
+                cs_hi,
+                group="stray",
+            )
+        )
+        if block.gate is not None:
+            d_lo, d_hi = gate_delay_band(block.gate, block.conditions.supply.low)
+            out.append(
+                Factor(
+                    "gate.delay",
+                    f"{block.gate.name} gate propagation delay ({format_quantity(d_lo, 'time')}…"
+                    f"{format_quantity(d_hi, 'time')})",
+                    0.5 * (d_lo + d_hi),
+                    d_lo,
+                    d_hi,
+                    group="gate",
+                )
+            )
+        rising, falling = declarations(block, leak.low, leak.high)
         return [declare_monotone(f, "delay", rising, falling) for f in out]
 
     def evaluate(self, block: Block, variant: str) -> Evaluate:
@@ -227,8 +287,9 @@ class Delay:
 
         Notes
         -----
-        ``t = R·C·ln((V − i·R − V0)/(V − i·R − Vth))`` with ``Vth = k·V`` for a
-        ratiometric threshold.
+        ``t = t_pd + R·(C + Cs)·ln((V − i·R − V0)/(V − i·R − Vth))`` with
+        ``Vth = k·V`` for a ratiometric threshold, ``Cs`` the stray and ``t_pd``
+        the gate's propagation delay (0 without a gate class).
 
         References
         ----------
@@ -239,11 +300,13 @@ class Delay:
 
         def evaluate(x: Inputs) -> dict[str, FloatArray]:
             r = apply_part(x, "R")
-            c = apply_part(x, "C")
+            c = apply_part(x, "C") + x["stray"]
             v = x["supply"]
             vth = x["threshold"] * v if ratio else x["threshold"]
             i = x.get("leak", np.zeros(1))
             t = rcdelay.charge_time(r, c, v, start, vth, i)
+            if "gate.delay" in x:
+                t = t + x["gate.delay"]
             return {"delay": np.asarray(t, dtype=np.float64)}
 
         return evaluate
@@ -294,9 +357,11 @@ class Delay:
         -------
         list of Finding
             Threshold never reached or already passed at the start (errors);
-            threshold in volts on a varying supply, drain shifting the delay
-            (warnings); supply taken as a step, discharge between power cycles,
-            slow edge at the input (notes); dielectric.
+            threshold in volts on a varying supply, leakage shifting the delay,
+            timing capacitor comparable with the stray (warnings); input leakage
+            assumed, supply taken as a step, discharge between power cycles,
+            slow edge at the input (notes); gate class used outside its ranges;
+            dielectric.
         """
         out: list[Finding] = []
         lo, hi = extremes["delay"]
@@ -305,9 +370,10 @@ class Delay:
         win = _threshold_window(block)
         vth_lo, vth_hi = _threshold_volts(block)
         start = block.number("start") or 0.0
-        leak = node_leakage(block, design)
+        band = node_leakage_band(block, design, block.gate)
+        leak = band.high
         r_max = r.value * (1 + r.tolerance)
-        c_max = c.value * (1 + c.tolerance)
+        c_max = c.value * (1 + c.tolerance) + stray_band(block.gate)[1]
         settle = s.low - leak * r_max
         if not math.isfinite(hi):
             out.append(
@@ -321,14 +387,16 @@ class Delay:
                     "smaller R with a larger C.",
                 )
             )
-        elif leak > 0 and leak * r_max > 0.01 * (s.low - vth_hi):
+        elif band.largest > 0 and band.largest * r_max > 0.01 * (s.low - vth_hi):
+            leak_text = format_quantity(band.largest, "current")
             out.append(
                 Finding(
                     "warning",
                     "leakage-shifts-delay",
-                    f"leakage ({format_quantity(leak, 'current')}) "
+                    f"leakage (up to ±{leak_text}{', assumed' if band.assumed else ''}) "
                     f"through R = {format_rkm(r.value, 'resistance')}Ω "
-                    f"drops {leak * r_max:.3g} V, more than 1 % of the {s.low - vth_hi:.3g} V "
+                    f"moves the node by up to {band.largest * r_max:.3g} V, more than 1 % of "
+                    f"the {s.low - vth_hi:.3g} V "
                     "left above the threshold; a smaller R with a larger C is more robust.",
                 )
             )
@@ -390,5 +458,9 @@ class Delay:
                         "cross-conduction current while it sits near its threshold).",
                     )
                 )
+        out.extend(leakage_note(band))
+        out.extend(stray_finding(block, c, block.gate))
+        if block.gate is not None:
+            out.extend(gate_stretches(block, block.gate, thresholds=False))
         out.extend(dielectric_findings(block, c))
         return out

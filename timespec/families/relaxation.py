@@ -18,7 +18,19 @@ pairs exactly (``gate.hysteresis``, ``gate.centre``) live in
 grid nodes.
 
 Leakage is the gate's input current, ``±i_input_max``, plus the ``leakage``
-bound of the capacitor and board (a drain only).
+bound of the capacitor and board (a drain only) and an electrolytic's own
+leakage.  The input pin and the board add a stray capacitance (``stray``) to C,
+and the gate switches its output a propagation delay (``gate.delay``) after the
+input crosses a threshold, which lengthens each half-period by the delay and
+the overshoot it lets the capacitor make
+(:func:`timespec.physics.relaxation.delayed_times`); the delay band is widened
+below the supply it is quoted at (see :mod:`timespec.families.logicinput`).
+
+Period, frequency, high and low time are monotone in the stray and the gate
+delay (more of either lengthens both halves); the duty cycle depends on them
+only through ``t_pd/(R·C)`` and is monotone in that ratio (checked on a dense
+grid of thresholds and leakage shifts in the tests), so both factors are
+searched at their ends.
 """
 
 from __future__ import annotations
@@ -31,6 +43,13 @@ import numpy as np
 from timespec.analysis import Factor, grouped_shares, rss, worst_case
 from timespec.families.capacitors import dielectric_findings
 from timespec.families.inputs import apply_part, condition_factors, part_factors
+from timespec.families.logicinput import (
+    gate_delay_band,
+    gate_stretches,
+    node_leakage_band,
+    stray_band,
+    stray_finding,
+)
 from timespec.families.protocol import Evaluate, Finding, FloatArray, Inputs, Output
 from timespec.families.rcscale import rc_candidates
 from timespec.families.schmitt import (
@@ -51,10 +70,9 @@ __all__ = ["Relaxation"]
 GATE_GROUP = "gate thresholds"
 
 
-def _leak_bounds(block: Block) -> tuple[float, float]:
-    gate = block.gate
-    assert gate is not None
-    return -gate.i_input_max, gate.i_input_max + (block.number("leakage") or 0.0)
+def _leak_bounds(block: Block, design: Design) -> tuple[float, float]:
+    band = node_leakage_band(block, design, block.gate, add_stated=True)
+    return band.low, band.high
 
 
 class Relaxation:
@@ -98,8 +116,8 @@ class Relaxation:
         -------
         list of Factor
             Parts, ambient and supply, ``gate.hysteresis`` and ``gate.centre``
-            (see the module notes) and ``leak``, the signed input leakage
-            (A, positive drains the node).
+            (see the module notes), ``leak``, the signed input leakage
+            (A, positive drains the node), ``stray`` (F) and ``gate.delay`` (s).
         """
         gate = block.gate
         assert gate is not None
@@ -137,7 +155,7 @@ class Relaxation:
                 group=GATE_GROUP,
             )
         )
-        i_lo, i_hi = _leak_bounds(block)
+        i_lo, i_hi = _leak_bounds(block, design)
         out.append(
             Factor(
                 "leak",
@@ -147,6 +165,30 @@ class Relaxation:
                 i_hi,
                 monotone=False,
                 group="leakage",
+            )
+        )
+        cs_lo, cs_hi = stray_band(gate)
+        out.append(
+            Factor(
+                "stray",
+                f"input and board stray ({format_quantity(cs_lo, 'capacitance')}…"
+                f"{format_quantity(cs_hi, 'capacitance')})",
+                0.5 * (cs_lo + cs_hi),
+                cs_lo,
+                cs_hi,
+                group="stray",
+            )
+        )
+        d_lo, d_hi = gate_delay_band(gate, block.conditions.supply.low)
+        out.append(
+            Factor(
+                "gate.delay",
+                f"{gate.name} gate propagation delay ({format_quantity(d_lo, 'time')}…"
+                f"{format_quantity(d_hi, 'time')})",
+                0.5 * (d_lo + d_hi),
+                d_lo,
+                d_hi,
+                group="gate delay",
             )
         )
         return out
@@ -172,7 +214,9 @@ class Relaxation:
         -----
         ``VT± = (c ± w/2)·V``; the physics adds the drain ``i`` to both phases
         (``tH = R·C·ln((V − i·R − VT−)/(V − i·R − VT+))``,
-        ``tL = R·C·ln((VT+ + i·R)/(VT− + i·R))``).
+        ``tL = R·C·ln((VT+ + i·R)/(VT− + i·R))`` without gate delay), C includes
+        the stray, and the gate delay enters through
+        :func:`~timespec.physics.relaxation.delayed_times`.
 
         References
         ----------
@@ -184,7 +228,7 @@ class Relaxation:
 
         def evaluate(x: Inputs) -> dict[str, FloatArray]:
             r = apply_part(x, "R")
-            c = apply_part(x, "C")
+            c = apply_part(x, "C") + x["stray"]
             v = x["supply"]
             i = x["leak"]
             w = np.interp(x["gate.hysteresis"], us, ws)
@@ -192,8 +236,7 @@ class Relaxation:
             centre = threshold_centre(th, w, x["gate.centre"], e)
             vt_plus = (centre + 0.5 * w) * v
             vt_minus = (centre - 0.5 * w) * v
-            t_h = relaxation.high_time(r, c, v, vt_plus, vt_minus, i)
-            t_l = relaxation.low_time(r, c, 0.0, vt_plus, vt_minus, i)
+            t_h, t_l = relaxation.delayed_times(r, c, v, 0.0, vt_plus, vt_minus, x["gate.delay"], i)
             period = t_h + t_l
             ok = np.isfinite(period)
             with np.errstate(divide="ignore", invalid="ignore"):
@@ -255,9 +298,10 @@ class Relaxation:
         list of Finding
             Inconsistent threshold bands, no oscillation, frequency above the
             class's limit (errors); R outside the class's usable range, leakage
-            shifting the thresholds (warnings); the share of the spread due to
-            the thresholds, gate delay near the limit, the longer first cycle
-            (notes); dielectric.
+            shifting the thresholds, timing capacitor comparable with the stray
+            (warnings); the share of the spread due to the thresholds, gate
+            delay a noticeable share of the period, the longer first cycle
+            (notes); gate class used outside its ranges; dielectric.
         """
         gate = block.gate
         assert gate is not None
@@ -287,23 +331,29 @@ class Relaxation:
                     "larger C.",
                 )
             )
-        if f_hi > gate.f_max:
+        slow = gate.slowdown(s.low)
+        f_max = gate.f_max / slow
+        at = f" at {s.low:g} V" if slow > 1.0 else ""
+        if f_hi > f_max:
             out.append(
                 Finding(
                     "error",
                     "frequency-above-gate-limit",
                     f"the frequency can reach {f_hi:.4g} Hz, above the {gate.name} class's "
-                    f"{gate.f_max:.3g} Hz for an RC oscillator. Use a faster gate class or a "
-                    "crystal or timer circuit.",
+                    f"{f_max:.3g} Hz{at} for an RC oscillator. Use a faster gate class, a higher "
+                    "supply, or a crystal or timer circuit.",
                 )
             )
-        elif f_hi > 0.1 * gate.f_max:
+        d_hi = gate_delay_band(gate, s.low)[1]
+        if math.isfinite(t_lo) and t_lo > 0 and 2 * d_hi > 0.01 * t_lo:
             out.append(
                 Finding(
                     "note",
-                    "gate-delay-not-modelled",
-                    f"at up to {f_hi:.4g} Hz the gate's own propagation delay (not modelled) "
-                    "lengthens each half-period noticeably; measure on the board.",
+                    "gate-delay-share",
+                    f"the gate's propagation delay (up to {format_quantity(d_hi, 'time')} per "
+                    f"edge{at}) is {2 * d_hi / t_lo * 100:.2g} % of the shortest period "
+                    f"{format_quantity(t_lo, 'time')}; the worst case includes it, but it "
+                    "depends on the load at the output: keep that load small.",
                 )
             )
         rv = format_rkm(r.value, "resistance")
@@ -327,7 +377,7 @@ class Relaxation:
                     "and the input capacitance govern the timing. Use a smaller R with a larger C.",
                 )
             )
-        i_lo, i_hi = _leak_bounds(block)
+        i_lo, i_hi = _leak_bounds(block, design)
         shift = max(abs(i_lo), abs(i_hi)) * r.value * (1 + r.tolerance)
         if shift > 0.5 * th.hysteresis_min * s.low:
             out.append(
@@ -354,6 +404,9 @@ class Relaxation:
                 "if the first edges are counted.",
             )
         )
+        out.extend(stray_finding(block, c, gate))
+        overridden = block.window("rising") is not None and block.window("falling") is not None
+        out.extend(gate_stretches(block, gate, thresholds=not overridden))
         out.extend(dielectric_findings(block, c))
         return out
 

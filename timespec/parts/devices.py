@@ -14,10 +14,16 @@ A spec can override the timing-accuracy figures of a timer class
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, replace
 
+from timespec.parts.validity import Held
+
 __all__ = [
+    "BOARD_STRAY",
     "GATE_CLASSES",
+    "LOGIC_INPUT_CAPACITANCE",
+    "LOGIC_INPUT_LEAKAGE",
     "TIMER_CLASSES",
     "GateClass",
     "TimerClass",
@@ -182,6 +188,14 @@ def timer_class(name: str) -> TimerClass:
     return TIMER_CLASSES[name.lower()]
 
 
+#: Board stray capacitance at a timing node (pad, trace, a via), F: "a few pF".  [DS/Mem]
+BOARD_STRAY: tuple[float, float] = (1e-12, 5e-12)
+#: Pin capacitance of a generic CMOS logic input, F (typ about 3–5 pF, max 10 pF).  [DS]
+LOGIC_INPUT_CAPACITANCE: tuple[float, float] = (2e-12, 10e-12)
+#: Input leakage bound of a generic CMOS logic input over temperature, A (either sign).  [DS]
+LOGIC_INPUT_LEAKAGE = 1e-6
+
+
 @dataclass(frozen=True)
 class GateClass:
     """Thresholds and limits of a generic Schmitt-trigger inverter class.
@@ -201,9 +215,24 @@ class GateClass:
     i_input_max
         Input leakage bound, A (either sign).  [DS]
     f_max
-        Highest frequency the class is used at as an RC oscillator, Hz.  [Mem]
+        Highest frequency the class is used at as an RC oscillator, Hz, at
+        :attr:`quoted_supply`.  [Mem]
     r_min, r_max
         Usable feedback resistor range, Ω.  [CP]
+    t_pd
+        Propagation delay band ``(min, max)`` input to output, s, at
+        :attr:`quoted_supply` over the class's temperature range.  [DS/Mem]
+    c_input
+        Input (pin) capacitance band ``(min, max)``, F.  [DS]
+    quoted_supply
+        The supply the threshold fractions, the delay and ``f_max`` are quoted at, V.  [DS]
+    thresholds_held
+        Supply range over which the threshold fractions hold.
+    speed_held
+        Supply range over which ``t_pd`` and ``f_max`` hold as quoted; below it
+        the gate is slower (see :meth:`slowdown`).
+    leakage_held
+        Ambient range over which ``i_input_max`` is guaranteed.
     """
 
     name: str
@@ -216,6 +245,36 @@ class GateClass:
     f_max: float
     r_min: float
     r_max: float
+    t_pd: tuple[float, float]
+    c_input: tuple[float, float]
+    quoted_supply: float
+    thresholds_held: Held
+    speed_held: Held
+    leakage_held: Held
+
+    def slowdown(self, supply_low: float) -> float:
+        """Factor by which the propagation delay grows (and ``f_max`` shrinks) at a supply.
+
+        Parameters
+        ----------
+        supply_low
+            The lowest supply of the design, V.
+
+        Returns
+        -------
+        float
+            ``1`` inside :attr:`speed_held`; below it ``(V_low_held / supply_low)²``.
+
+        Notes
+        -----
+        CMOS gate delay grows roughly as the square of the drive lost at a lower
+        supply; for the high-speed class this gives about 5× from 4.5 V to 2 V,
+        as the class's datasheets show for the maximum delay [DS/Mem].
+        """
+        low = self.speed_held.low
+        if supply_low >= low or supply_low <= 0.0:
+            return 1.0
+        return (low / supply_low) ** 2
 
 
 GATE_CLASSES: dict[str, GateClass] = {
@@ -230,6 +289,35 @@ GATE_CLASSES: dict[str, GateClass] = {
         f_max=10e6,  # [Mem]
         r_min=1e3,  # [CP]
         r_max=1e6,  # [CP] leakage sets the top
+        # [DS] about 15 ns typ, 48 ns max at 4.5 V, 50 pF load, −55…125 °C; the 5 ns
+        # floor is [Mem] (datasheets give no minimum).
+        t_pd=(5e-9, 48e-9),
+        c_input=(2e-12, 10e-12),  # [DS] 3.5 pF typ, 10 pF max
+        quoted_supply=4.5,  # [DS]
+        thresholds_held=Held(
+            "highspeed threshold fractions VT+ 0.38…0.70, VT− 0.20…0.44",
+            "supply",
+            4.5,
+            6.0,
+            "voltage",
+            "[DS] quoted at 4.5 V and 6 V; at 2 V the shares differ",
+        ),
+        speed_held=Held(
+            "highspeed propagation delay ≤ 48 ns and f_max 10 MHz",
+            "supply",
+            4.5,
+            math.inf,
+            "voltage",
+            "[DS] quoted at 4.5 V; about 5× slower at 2 V",
+        ),
+        leakage_held=Held(
+            "highspeed input leakage ±1 µA",
+            "ambient",
+            -55.0,
+            125.0,
+            "temperature",
+            "[DS] guaranteed over −55…125 °C",
+        ),
     ),
     "metalgate": GateClass(
         name="metalgate",
@@ -242,6 +330,35 @@ GATE_CLASSES: dict[str, GateClass] = {
         f_max=1e6,  # [Mem]
         r_min=10e3,  # [CP]
         r_max=10e6,  # [CP]
+        # [DS] about 140 ns typ, 280 ns max at 5 V, 25 °C, 50 pF load; 400 ns over
+        # temperature and 50 ns floor are [Mem].
+        t_pd=(50e-9, 400e-9),
+        c_input=(3e-12, 7.5e-12),  # [DS] 5 pF typ, 7.5 pF max
+        quoted_supply=5.0,  # [DS]
+        thresholds_held=Held(
+            "metalgate threshold fractions VT+ 0.60…0.86, VT− 0.14…0.40",
+            "supply",
+            4.5,
+            5.5,
+            "voltage",
+            "[DS] quoted at 5 V; the shares differ at 10 V and 15 V [Mem]",
+        ),
+        speed_held=Held(
+            "metalgate propagation delay ≤ 400 ns and f_max 1 MHz",
+            "supply",
+            5.0,
+            math.inf,
+            "voltage",
+            "[DS] quoted at 5 V; faster at 10 V and 15 V, slower below 5 V",
+        ),
+        leakage_held=Held(
+            "metalgate input leakage ±1 µA",
+            "ambient",
+            -55.0,
+            125.0,
+            "temperature",
+            "[DS] guaranteed over the full temperature range",
+        ),
     ),
 }
 

@@ -14,9 +14,9 @@ from __future__ import annotations
 import numpy as np
 
 from timespec.physics._types import ArrayLike, FloatArray, as_float_array, quiet
-from timespec.physics.rcdelay import charge_time
+from timespec.physics.rcdelay import charge_time, threshold_from_time
 
-__all__ = ["duty", "frequency", "high_time", "low_time", "period"]
+__all__ = ["delayed_times", "duty", "frequency", "high_time", "low_time", "period"]
 
 
 @quiet
@@ -245,3 +245,70 @@ def duty(
     t_l = low_time(r, c, v_low, vt_plus, vt_minus, i_drain)
     with np.errstate(divide="ignore", invalid="ignore"):
         return as_float_array(t_h / (t_h + t_l))
+
+
+@quiet
+def delayed_times(
+    r: ArrayLike,
+    c: ArrayLike,
+    v_high: ArrayLike,
+    v_low: ArrayLike,
+    vt_plus: ArrayLike,
+    vt_minus: ArrayLike,
+    t_pd: ArrayLike,
+    i_drain: ArrayLike = 0.0,
+) -> tuple[FloatArray, FloatArray]:
+    """High and low times of the steady oscillation with a gate propagation delay.
+
+    Parameters
+    ----------
+    r : ArrayLike
+        Feedback resistor, ohm.
+    c : ArrayLike
+        Timing capacitor (stray included), F.
+    v_high : ArrayLike
+        Output high level, V.
+    v_low : ArrayLike
+        Output low level, V.
+    vt_plus : ArrayLike
+        Rising input threshold, V.
+    vt_minus : ArrayLike
+        Falling input threshold, V.
+    t_pd : ArrayLike
+        Propagation delay from a threshold crossing at the input to the output
+        edge, s (``>= 0``; the same for both edges).
+    i_drain : ArrayLike, optional
+        Constant current leaving the input node, A.  Default 0.
+
+    Returns
+    -------
+    tuple of FloatArray
+        ``(tH, tL)``, s (``inf`` where a threshold is never reached).
+
+    Notes
+    -----
+    The output switches ``t_pd`` after the input crosses a threshold, and the
+    capacitor keeps moving toward the old target meanwhile, so it overshoots:
+    it turns at ``v_top = v(t_pd)`` charging from VT+ toward ``v_high − i·R`` and
+    at ``v_bot = v(t_pd)`` discharging from VT− toward ``v_low − i·R``.  In the
+    steady cycle ::
+
+        tH = t_pd + R·C·ln((Vh' − v_bot)/(Vh' − VT+))
+        tL = t_pd + R·C·ln((v_top − Vl')/(VT− − Vl'))
+
+    with ``Vh' = v_high − i·R``, ``Vl' = v_low − i·R``.  With ``t_pd = 0`` they are
+    :func:`high_time` and :func:`low_time`; for ``t_pd ≪ R·C`` each half grows by
+    about ``t_pd`` plus the overshoot's share.
+
+    References
+    ----------
+    First-order RC charge and discharge laws, any circuit-theory handbook,
+    applied piecewise to the delayed switching (our own composition, checked
+    against scipy ``solve_ivp`` with a delayed comparator in the tests).
+    """
+    td = as_float_array(t_pd)
+    v_top = threshold_from_time(td, r, c, v_high, vt_plus, i_drain)
+    v_bot = threshold_from_time(td, r, c, v_low, vt_minus, i_drain)
+    t_h = td + charge_time(r, c, v_high, v_bot, vt_plus, i_drain)
+    t_l = td + charge_time(r, c, v_low, v_top, vt_minus, i_drain)
+    return as_float_array(t_h), as_float_array(t_l)
