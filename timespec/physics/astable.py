@@ -25,15 +25,19 @@ __all__ = [
     "TYPICAL_DIODE_V25",
     "classic_high_time",
     "classic_low_time",
+    "diode_charge_currents",
+    "diode_equation_high_time",
     "diode_forward_voltage",
     "diode_high_time",
     "diode_low_time",
+    "diode_saturation_current",
     "discharge_current",
     "discharge_node",
     "duty",
     "feedback_high_time",
     "feedback_low_time",
     "frequency",
+    "thermal_voltage",
 ]
 
 TYPICAL_DIODE_V25: float = 0.65
@@ -508,3 +512,266 @@ def discharge_current(v_supply: ArrayLike, ra: ArrayLike) -> FloatArray:
     """
     with np.errstate(divide="ignore", invalid="ignore"):
         return as_float_array(as_float_array(v_supply) / as_float_array(ra))
+
+
+#: Boltzmann constant over the elementary charge, V/K (CODATA 2018, exact in SI).
+K_OVER_Q: float = 1.380649e-23 / 1.602176634e-19
+
+#: Kelvin offset of the Celsius scale (SI).
+ZERO_C: float = 273.15
+
+#: Gauss-Legendre nodes and weights on [0, 1] for the RB correction of the diode charge.
+_GL_X, _GL_W = np.polynomial.legendre.leggauss(12)
+_GL_X = 0.5 * (_GL_X + 1.0)
+_GL_W = 0.5 * _GL_W
+
+
+@quiet
+def thermal_voltage(temp_c: ArrayLike) -> FloatArray:
+    """Thermal voltage ``Vt = k·T/q`` at a temperature.
+
+    Parameters
+    ----------
+    temp_c : ArrayLike
+        Temperature, degC.
+
+    Returns
+    -------
+    FloatArray
+        ``Vt``, V (25.69 mV at 25 degC).
+
+    Notes
+    -----
+    ``Vt = k·(T + 273.15)/q``.
+
+    References
+    ----------
+    CODATA 2018 values of the Boltzmann constant and the elementary charge.
+    """
+    return as_float_array(K_OVER_Q * (as_float_array(temp_c) + ZERO_C))
+
+
+@quiet
+def diode_saturation_current(
+    is25: ArrayLike, n: ArrayLike, temp_c: ArrayLike, eg: float = 1.11, xti: float = 3.0
+) -> FloatArray:
+    """Saturation current of a junction diode at temperature.
+
+    Parameters
+    ----------
+    is25 : ArrayLike
+        Saturation current at 25 degC, A.
+    n : ArrayLike
+        Emission coefficient.
+    temp_c : ArrayLike
+        Junction temperature, degC.
+    eg : float, optional
+        Activation energy, eV (silicon 1.11).
+    xti : float, optional
+        Temperature exponent (junction diode 3).
+
+    Returns
+    -------
+    FloatArray
+        ``Is(T)``, A.
+
+    Notes
+    -----
+    ``Is(T) = Is·(T/T0)^(XTI/n)·exp((Eg/(n·Vt(T)))·(T/T0 − 1))``, ``T0`` = 298.15 K.
+
+    References
+    ----------
+    The usual temperature law of the junction-diode model (semiconductor device
+    handbooks; circuit-simulator diode models).
+    """
+    t = as_float_array(temp_c) + ZERO_C
+    t0 = 25.0 + ZERO_C
+    nn = as_float_array(n)
+    vt = K_OVER_Q * t
+    ratio = t / t0
+    return as_float_array(
+        as_float_array(is25) * ratio ** (xti / nn) * np.exp(eg / (nn * vt) * (ratio - 1.0))
+    )
+
+
+def _node_drop(
+    u: FloatArray, ra: FloatArray, g_b: FloatArray, i_s: FloatArray, nvt: FloatArray
+) -> FloatArray:
+    """Diode voltage ``vd`` with ``u = vd + RA·(Is·(exp(vd/nVt) − 1) + vd/RB)``, ``u ≥ 0``.
+
+    Newton on ``y = vd/nVt``, started at the right of the root (``vd`` with the
+    whole of ``u`` across ``RA``, so ``exp(y0) − 1 = u/(RA·Is)``); the function is
+    convex and rising in ``y``, so the iteration falls monotonically onto the root.
+    """
+    y = np.log1p(np.maximum(u, 0.0) / (ra * i_s))
+    slope0 = nvt * (1.0 + ra * g_b)
+    for _ in range(8):
+        e = np.exp(y)
+        f = slope0 * y + ra * i_s * (e - 1.0) - u
+        y = np.maximum(y - f / (slope0 + ra * i_s * e), 0.0)
+    return as_float_array(nvt * y)
+
+
+def _inv_exp_integral(
+    beta: FloatArray, d1: FloatArray, d2: FloatArray, a: FloatArray
+) -> FloatArray:
+    """``∫ dx/(Is·e^(a·x) − β)`` between the points where ``Is·e^(a·x)`` is d2 and d1.
+
+    Closed form ``(1/a)·(φ(q2)/D2 − φ(q1)/D1)``, ``q = β/D``, ``φ(q) = −ln(1 − q)/q``
+    (``φ(0) = 1``), stable for ``β`` of either sign and near zero.
+    """
+
+    def phi(q: FloatArray) -> FloatArray:
+        small = np.abs(q) < 1e-7
+        qs = np.where(small, 0.5, q)
+        return np.where(small, 1.0 + 0.5 * q, -np.log1p(-qs) / qs)
+
+    return as_float_array((phi(beta / d2) / d2 - phi(beta / d1) / d1) / a)
+
+
+@quiet
+def diode_charge_currents(
+    ra: ArrayLike,
+    v_supply: ArrayLike,
+    threshold_ratio: ArrayLike,
+    is_t: ArrayLike,
+    n_vt: ArrayLike,
+    rb: ArrayLike = np.inf,
+) -> tuple[FloatArray, FloatArray]:
+    """Steering-diode forward current at the two thresholds of the charge.
+
+    Parameters
+    ----------
+    ra : ArrayLike
+        Resistor from the supply to the discharge pin, ohm.
+    v_supply : ArrayLike
+        Supply voltage, V.
+    threshold_ratio : ArrayLike
+        Upper threshold as a fraction of the supply, ``k``.
+    is_t : ArrayLike
+        Diode saturation current at the junction temperature, A.
+    n_vt : ArrayLike
+        Emission coefficient times the thermal voltage, V.
+    rb : ArrayLike, optional
+        Resistor in parallel with the diode, ohm.  Default ``inf``.
+
+    Returns
+    -------
+    tuple of FloatArray
+        ``(I_lo, I_hi)``, A: diode current with the capacitor at ``kV/2`` and at
+        ``kV`` (the largest and smallest of the charge).
+
+    Notes
+    -----
+    ``V − v = vd + RA·(Is·(exp(vd/nVt) − 1) + vd/RB)`` is solved for ``vd`` at each
+    threshold; the diode carries ``Is·(exp(vd/nVt) − 1)``.
+
+    References
+    ----------
+    Diode equation and Kirchhoff's laws, any circuit-theory handbook.
+    """
+    lo, hi = _levels(v_supply, threshold_ratio)
+    v = as_float_array(v_supply)
+    r_a = as_float_array(ra)
+    g_b = 1.0 / as_float_array(rb)
+    i_s = as_float_array(is_t)
+    nvt = as_float_array(n_vt)
+    out = []
+    for vc in (lo, hi):
+        vd = _node_drop(as_float_array(v - vc), r_a, g_b, i_s, nvt)
+        out.append(as_float_array(i_s * np.expm1(vd / nvt)))
+    return out[0], out[1]
+
+
+@quiet
+def diode_equation_high_time(
+    ra: ArrayLike,
+    c: ArrayLike,
+    v_supply: ArrayLike,
+    threshold_ratio: ArrayLike,
+    is_t: ArrayLike,
+    n_vt: ArrayLike,
+    i_drain: ArrayLike = 0.0,
+    rb: ArrayLike = np.inf,
+) -> FloatArray:
+    """Output-high time of the steering-diode astable with the diode equation.
+
+    Parameters
+    ----------
+    ra : ArrayLike
+        Resistor from the supply to the discharge pin, ohm.
+    c : ArrayLike
+        Timing capacitor, F.
+    v_supply : ArrayLike
+        Supply voltage, V.
+    threshold_ratio : ArrayLike
+        Upper threshold as a fraction of the supply, ``k``.
+    is_t : ArrayLike
+        Diode saturation current at the junction temperature, A
+        (:func:`diode_saturation_current`).
+    n_vt : ArrayLike
+        Emission coefficient times the thermal voltage, V.
+    i_drain : ArrayLike, optional
+        Constant current leaving the capacitor node, A.  Default 0.
+    rb : ArrayLike, optional
+        Discharge resistor in parallel with the diode, ohm.  Default ``inf``.
+
+    Returns
+    -------
+    FloatArray
+        High time, s (``inf`` where the charge current at ``kV`` does not beat the
+        drain).
+
+    Notes
+    -----
+    All of the current through ``RA`` reaches the capacitor, through the diode
+    or ``RB``: ``C·dv/dt = g``, ``g = I_A − i``, with the node equation
+    ``V − v = vd + RA·I_A(vd)``, ``I_A(vd) = Is·(exp(vd/nVt) − 1) + vd/RB``.
+    Parametrised by the diode voltage (``dv = −(1 + RA·I_A'(vd))·dvd``)::
+
+        tH = C·[RA·ln(g1/g2) + ∫[vd2, vd1] dvd/(I_A(vd) − i)]
+
+    with ``vd1``, ``vd2`` the drops at ``kV/2`` and ``kV`` (:func:`diode_charge_currents`).
+    With ``RB = inf`` the integral is closed,
+    ``(nVt/(Is + i))·ln((I1 − i)(I2 + Is)/((I2 − i)(I1 + Is)))``; with a finite
+    ``RB`` the same closed form is taken at the ``RB`` current of ``vd2`` and the
+    small remainder (the ``RB`` current's change over the charge) by 12-point
+    Gauss-Legendre quadrature.  No switch-over point is needed: the exponential
+    diode hands the current to ``RB`` smoothly where the classic law takes over.
+
+    References
+    ----------
+    Diode equation (Shockley), first-order capacitor charge and Kirchhoff's laws,
+    any circuit-theory handbook; the steering-diode circuit is common practice.
+    """
+    lo, hi = _levels(v_supply, threshold_ratio)
+    v = as_float_array(v_supply)
+    r_a = as_float_array(ra)
+    g_b = 1.0 / as_float_array(rb)
+    i_s = as_float_array(is_t)
+    nvt = as_float_array(n_vt)
+    i = as_float_array(i_drain)
+    vd1 = _node_drop(as_float_array(v - lo), r_a, g_b, i_s, nvt)
+    vd2 = _node_drop(as_float_array(v - hi), r_a, g_b, i_s, nvt)
+    g1 = (v - lo - vd1) / r_a - i
+    g2 = (v - hi - vd2) / r_a - i
+    ok = (g2 > 0.0) & (g1 > 0.0)
+    g1s = np.where(ok, g1, 1.0)
+    g2s = np.where(ok, g2, 1.0)
+    a = 1.0 / nvt
+    d1 = i_s * np.exp(vd1 * a)
+    d2 = i_s * np.exp(vd2 * a)
+    beta = i_s + i - vd2 * g_b
+    closed = _inv_exp_integral(beta, d1, d2, a)
+    # remainder: ∫ [1/g − 1/h] with g = h + (vd − vd2)/RB, h = Is·e^(a·vd) − beta
+    span = vd1 - vd2
+    rest = np.zeros(np.broadcast(span, g_b, beta).shape)
+    if np.any(g_b > 0.0):
+        for xn, wn in zip(_GL_X, _GL_W, strict=True):
+            x = vd2 + xn * span
+            h = i_s * np.exp(x * a) - beta
+            dg = (x - vd2) * g_b
+            rest = rest - wn * dg / (h * (h + dg))
+        rest = rest * span
+    t = as_float_array(c) * (r_a * np.log(g1s / g2s) + closed + rest)
+    return as_float_array(np.where(ok, t, np.inf))

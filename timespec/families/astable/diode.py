@@ -2,24 +2,34 @@
 
 The capacitor charges through ``RA`` alone (toward the supply less the diode
 drop) and discharges through ``RB``, so any duty cycle is possible.  The diode
-drop is a band at 25 °C (:data:`DIODE_DROP_BAND`, or ``diode 0.55 V to 0.75 V``
-in the block) plus a tempco (:data:`DIODE_TC_BAND`), so the high time depends on
-supply and temperature; both are modelled.  Here: those constants and factors,
-the half-period model, and the circuit's steps of the RA/RB search
-(:data:`PAIR_SEARCH`, run by :func:`~timespec.families.astable.discharge.pair_options`):
-``RA`` from the high time and ``RB`` from the low time, independently.
+follows the diode equation of a generic small-signal silicon class
+(:data:`~timespec.parts.diodes.SMALL_SIGNAL`: saturation current and emission
+coefficient as bands, the usual temperature law of the saturation current), so
+its drop follows the current the chosen ``RA`` actually passes over the charge
+(about 0.4 V at 10–20 µA, 0.6–0.7 V at a few mA).  A block that states the drop
+(``diode 0.55 V to 0.75 V``) gets the constant-drop model with that band and a
+tempco (:data:`DIODE_TC_BAND`) instead; the band is then the user's promise.
+Here: those constants and factors, the half-period model, and the circuit's
+steps of the RA/RB search (:data:`PAIR_SEARCH`, run by
+:func:`~timespec.families.astable.discharge.pair_options`): ``RA`` from the high
+time and ``RB`` from the low time, independently.
 """
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from timespec.analysis import Factor
+from timespec.families.assumptions import Stretch, assumption_findings
 from timespec.families.astable.discharge import PairSearch
 from timespec.families.astable.nominal import NominalRun, safe_ratio
 from timespec.families.inputs import apply_part, drain_current
-from timespec.families.protocol import FloatArray, Inputs
+from timespec.families.protocol import Finding, FloatArray, Inputs
 from timespec.model import Block
+from timespec.parts.diodes import SMALL_SIGNAL, DiodeClass
+from timespec.parts.part import Design
 from timespec.physics import astable
 
 __all__ = [
@@ -27,14 +37,21 @@ __all__ = [
     "DIODE_TC_BAND",
     "PAIR_SEARCH",
     "STALL_CAUSE",
+    "current_findings",
     "drop_band",
     "drop_factors",
     "half_periods",
+    "stated_drop",
 ]
 
-#: Default forward-drop band of the steering diode at 25 °C, V: a small-signal
-#: silicon diode between about 0.1 mA and a few mA (common practice).
+#: Forward-drop band of a small-signal silicon diode between about 0.1 mA and a
+#: few mA at 25 °C, V (common practice).  Used only by :func:`drop_band` for
+#: messages and estimates; the model itself uses the diode equation unless the
+#: block states its own drop.
 DIODE_DROP_BAND: tuple[float, float] = (0.55, 0.75)
+
+#: The diode class of the steering diode.
+DIODE: DiodeClass = SMALL_SIGNAL
 
 #: Band of the diode drop's temperature coefficient, mV/K: about −2 mV/K for a
 #: silicon junction (common practice), spread ±20 % with current (from memory).
@@ -64,8 +81,24 @@ def drop_band(block: Block) -> tuple[float, float]:
     return (w.low, w.high)
 
 
+def stated_drop(block: Block) -> bool:
+    """Whether the block states the diode's drop (constant-drop model).
+
+    Parameters
+    ----------
+    block
+        An astable block.
+
+    Returns
+    -------
+    bool
+        True when the block has a ``diode`` statement.
+    """
+    return block.window("diode") is not None
+
+
 def drop_factors(block: Block) -> list[Factor]:
-    """The diode drop as varying inputs.
+    """The diode as varying inputs.
 
     Parameters
     ----------
@@ -75,9 +108,32 @@ def drop_factors(block: Block) -> list[Factor]:
     Returns
     -------
     list of Factor
-        ``diode.v25`` (drop at 25 °C, V, over :func:`drop_band`) and ``diode.tc``
-        (mV/K, over :data:`DIODE_TC_BAND`).
+        With a stated drop: ``diode.v25`` (drop at 25 °C, V, over
+        :func:`drop_band`) and ``diode.tc`` (mV/K, over :data:`DIODE_TC_BAND`).
+        Otherwise the diode-equation parameters of :data:`DIODE`: ``diode.is``
+        (saturation current at 25 °C, A) and ``diode.n`` (emission coefficient).
     """
+    if not stated_drop(block):
+        is_lo, is_hi = DIODE.is_band
+        n_lo, n_hi = DIODE.n_band
+        return [
+            Factor(
+                "diode.is",
+                f"diode saturation current at 25 °C ({is_lo * 1e9:g}…{is_hi * 1e9:g} nA)",
+                math.sqrt(is_lo * is_hi),
+                is_lo,
+                is_hi,
+                group="diode",
+            ),
+            Factor(
+                "diode.n",
+                f"diode emission coefficient ({n_lo:g}…{n_hi:g})",
+                0.5 * (n_lo + n_hi),
+                n_lo,
+                n_hi,
+                group="diode",
+            ),
+        ]
     lo, hi = drop_band(block)
     tc_lo, tc_hi = DIODE_TC_BAND
     return [
@@ -111,10 +167,11 @@ def half_periods(x: Inputs) -> tuple[FloatArray, FloatArray]:
     Returns
     -------
     tuple of FloatArray
-        ``(tH, tL)``, s: the drop ``V25 + tc·(T − 25)`` into
-        :func:`~timespec.physics.astable.diode_high_time` (with the tail where the
-        diode stops conducting) and
-        :func:`~timespec.physics.astable.classic_low_time`; ``inf`` where a
+        ``(tH, tL)``, s.  High time: with the diode-equation factors,
+        :func:`~timespec.physics.astable.diode_equation_high_time` (exact, RB in
+        parallel and the drain included); with a stated drop, ``V25 + tc·(T − 25)``
+        into :func:`~timespec.physics.astable.diode_high_time`.  Low time:
+        :func:`~timespec.physics.astable.classic_low_time`.  ``inf`` where a
         threshold is never reached.
     """
     c = apply_part(x, "C")
@@ -124,10 +181,70 @@ def half_periods(x: Inputs) -> tuple[FloatArray, FloatArray]:
     ra = apply_part(x, "RA")
     rb = apply_part(x, "RB")
     ron = x["timer.ron"]
-    vd = astable.diode_forward_voltage(x["diode.v25"], x["diode.tc"], x["temp"])
-    th = astable.diode_high_time(ra, c, v, k, vd, i, rb)
+    if "diode.is" in x:
+        is_t, n_vt = _diode_at(x["diode.is"], x["diode.n"], x["temp"])
+        th = astable.diode_equation_high_time(ra, c, v, k, is_t, n_vt, i, rb)
+    else:
+        vd = astable.diode_forward_voltage(x["diode.v25"], x["diode.tc"], x["temp"])
+        th = astable.diode_high_time(ra, c, v, k, vd, i, rb)
     tl = astable.classic_low_time(ra, rb, c, v, k, ron, i)
     return th, tl
+
+
+def _diode_at(
+    is25: FloatArray | float, n: FloatArray | float, temp: FloatArray | float
+) -> tuple[FloatArray, FloatArray]:
+    """Saturation current and ``n·Vt`` of :data:`DIODE` at a temperature."""
+    is_t = astable.diode_saturation_current(is25, n, temp, DIODE.eg, DIODE.xti)
+    n_vt = np.asarray(n, dtype=np.float64) * astable.thermal_voltage(temp)
+    return is_t, n_vt
+
+
+def current_findings(block: Block, design: Design) -> list[Finding]:
+    """Where the diode equation is stretched by the current the design passes.
+
+    Parameters
+    ----------
+    block
+        An astable block (diode circuit).
+    design
+        Parts ``RA``, ``RB``, ``C``.
+
+    Returns
+    -------
+    list of Finding
+        ``diode-current-range`` when the diode current over the charge, at the
+        corners of supply, temperature, threshold ratio and the class's bands,
+        leaves :attr:`DiodeClass.held` (the range where the equation with these
+        bands holds); empty with a stated drop or inside the range.
+    """
+    if stated_drop(block):
+        return []
+    assert block.timer is not None
+    ra = design.part("RA").value
+    rb = design.part("RB").value
+    c = block.conditions
+    grid = np.array(
+        [
+            (v, t, k, i_s, n)
+            for v in (c.supply.low, c.supply.high)
+            for t in (c.ambient_low, c.ambient_high)
+            for k in block.timer.ratio_band
+            for i_s in DIODE.is_band
+            for n in DIODE.n_band
+        ],
+        dtype=np.float64,
+    )
+    v, t, k, i_s, n = grid.T
+    is_t, n_vt = _diode_at(i_s, n, t)
+    i_lo, i_hi = astable.diode_charge_currents(ra, v, k, is_t, n_vt, rb)
+    low = float(np.min(np.minimum(i_lo, i_hi)))
+    high = float(np.max(np.maximum(i_lo, i_hi)))
+    fix = (
+        "Choose RA so the charge current stays in that range, or measure your diode "
+        "and state its drop ('diode 0.35 V to 0.45 V')."
+    )
+    return assumption_findings([Stretch(DIODE.held, low, high, fix)], "diode-current-range")
 
 
 def _high_gain(run: NominalRun, probe: dict[str, FloatArray]) -> float:

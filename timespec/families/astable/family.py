@@ -242,6 +242,8 @@ class Astable:
         out.extend(duty_findings(block, variant))
         if variant == "feedback":
             out.extend(feedback.rail_findings(block))
+        if variant == "diode":
+            out.extend(diode.current_findings(block, design))
         hi_ex = extremes.get("high", (0.0, 0.0))
         lo_ex = extremes.get("low", (0.0, 0.0))
         if not (math.isfinite(hi_ex[1]) and math.isfinite(lo_ex[1])):

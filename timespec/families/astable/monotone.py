@@ -186,7 +186,9 @@ def _finite_everywhere(facs: Mapping[str, Factor], variant: str) -> bool:
     ra_lo, ra_hi = _bounds(facs, "RA", t_dev)
     rb_hi = _bounds(facs, "RB", t_dev)[1]
     high_ok = room > i_max * (ra_hi + rb_hi)
-    if variant == "diode" and not high_ok:
+    # With the diode equation the diode only adds to the charging current of the
+    # RA + RB path, so the classic bound above is already sufficient.
+    if variant == "diode" and not high_ok and "diode.v25" in facs:
         tc_lo, tc_hi = _span(facs, "diode.tc")
         vd_max = _span(facs, "diode.v25")[1] + 1e-3 * max(
             tc * (t - REFERENCE_C) for tc in (tc_lo, tc_hi) for t in (t_lo, t_hi)
