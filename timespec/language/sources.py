@@ -23,6 +23,7 @@ __all__ = [
     "MAX_SPEC_BYTES",
     "SourceError",
     "SpecText",
+    "file_kind",
     "read_spec_file",
 ]
 
@@ -99,7 +100,7 @@ def read_spec_file(path: Path) -> SpecText:
         if stat.S_ISDIR(st.st_mode):
             raise SourceError("it is a folder, not a spec file")
         if not stat.S_ISREG(st.st_mode):
-            raise SourceError(f"it is {_kind(st.st_mode)}, not a regular file")
+            raise SourceError(f"it is {file_kind(st.st_mode)}, not a regular file")
         if st.st_size > MAX_SPEC_BYTES:
             raise SourceError(
                 f"it is {st.st_size:,} bytes; spec files are limited to "
@@ -133,7 +134,22 @@ def _read_at_most(fd: int, limit: int) -> bytes:
     return b"".join(chunks)
 
 
-def _kind(mode: int) -> str:
+def file_kind(mode: int) -> str:
+    """What a non-regular file is, in words, from its ``st_mode``.
+
+    Parameters
+    ----------
+    mode
+        ``os.stat_result.st_mode``.
+
+    Returns
+    -------
+    str
+        ``"a folder"``, ``"a device"``, ``"a named pipe"``, ``"a socket"`` or
+        ``"not a regular file"``.
+    """
+    if stat.S_ISDIR(mode):
+        return "a folder"
     if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
         return "a device"
     if stat.S_ISFIFO(mode):

@@ -32,6 +32,7 @@ from types import FrameType
 from typing import Any
 
 from timespec.errors import UsageError
+from timespec.language.sources import file_kind
 
 _Handler = Any  # what signal.getsignal returns: a callable, SIG_DFL, SIG_IGN or None
 
@@ -86,7 +87,8 @@ def write_bytes_safely(path: str | Path, data: bytes) -> None:
     except OSError as exc:
         raise UsageError(f"cannot write {shown!r}: {exc.strerror}") from None
     if st is not None and not stat.S_ISREG(st.st_mode):
-        raise UsageError(f"cannot write {shown!r}: it is {_kind(st.st_mode)}, not a regular file")
+        kind = file_kind(st.st_mode)
+        raise UsageError(f"cannot write {shown!r}: it is {kind}, not a regular file")
     if st is not None and st.st_nlink > 1:
         _rewrite_in_place(dest, data, shown)
         return
@@ -130,18 +132,6 @@ def _new_file_mode() -> int:
     umask = os.umask(0)
     os.umask(umask)
     return 0o666 & ~umask
-
-
-def _kind(mode: int) -> str:
-    if stat.S_ISDIR(mode):
-        return "a folder"
-    if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
-        return "a device"
-    if stat.S_ISFIFO(mode):
-        return "a named pipe"
-    if stat.S_ISSOCK(mode):
-        return "a socket"
-    return "not a regular file"
 
 
 def _rewrite_in_place(dest: Path, data: bytes, shown: str) -> None:
