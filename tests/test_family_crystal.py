@@ -13,6 +13,7 @@ propagation.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 
 import numpy as np
 import pytest
@@ -33,6 +34,7 @@ from timespec.families.crystal import (
     declare,
     stray_window,
 )
+from timespec.families.inputs import apply_part
 from timespec.language.assemble import parse
 from timespec.model import Block
 from timespec.parts import series
@@ -272,11 +274,42 @@ def test_overdrive_suggests_series_resistor() -> None:
     r_std = series.nearest("E12", r)
     shown = f"{r_std / 1e3:.3g} kΩ" if r_std >= 1e3 else f"{r_std:.3g} Ω"
     assert shown in found[0].message
-    # Drive by hand at the high corner (application notes, from memory):
-    # ESR·(2πf·(C0 + CL)·Vpp/(2√2))² with CL at its largest.
-    cl_hi = result.best.output("load").high
-    d = 60 * (2 * math.pi * 12e6 * (1.5e-12 + cl_hi) * 3 / (2 * math.sqrt(2))) ** 2
+    # Drive at its worst corner, by the Pierce-loop formula written out here
+    # (application notes, from memory; checked against an exact nodal solution in
+    # test_pierce_network.py): the 3 Vpp output swing puts 3·(1 + C2/C1) across the
+    # crystal.
+    d = _drive_by_corners(blk, result.best.design, lambda supply: 3.0)
     assert result.best.output("drive").high == pytest.approx(d, rel=1e-9)
+    # About four times the old reading that took the swing as the crystal's voltage
+    # (equal capacitors double the crystal voltage).
+    cl_hi = result.best.output("load").high
+    old = 60 * (2 * math.pi * 12e6 * (1.5e-12 + cl_hi) * 3 / (2 * math.sqrt(2))) ** 2
+    assert 3.5 * old < d < 6.0 * old
+
+
+def _drive_by_corners(blk: Block, design: Design, vpp_of: Callable[[float], float]) -> float:
+    # Largest drive over every corner of the factor box, with the closed form of the
+    # Pierce loop written out independently of timespec.physics (application notes,
+    # from memory): DL = ESR·(2πf·(C0 + CL)·Vout·(1 + C2/C1)/(2√2))².  Every factor
+    # enters monotonically (the tempco scales both C0G capacitors alike), so the
+    # corners hold the maximum.
+    import itertools
+
+    facs = Crystal().factors(blk, design)
+    varying = [f for f in facs if is_varying(f)]
+    fixed = {f.name: f.nominal for f in facs if not is_varying(f)}
+    best = 0.0
+    for corner in itertools.product(*[(f.low, f.high) for f in varying]):
+        x = dict(fixed)
+        x.update({f.name: v for f, v in zip(varying, corner, strict=True)})
+        arrays = {k: np.asarray(v, dtype=float) for k, v in x.items()}
+        c1 = float(apply_part(arrays, "C1"))
+        c2 = float(apply_part(arrays, "C2"))
+        cl = c1 * c2 / (c1 + c2) + x["stray"]
+        v_x = vpp_of(x["supply"]) * (1 + c2 / c1)
+        i_rms = 2 * math.pi * 12e6 * (1.5e-12 + cl) * v_x / (2 * math.sqrt(2))
+        best = max(best, 60 * i_rms**2)
+    return best
 
 
 def test_gain_margin_and_gm_crit() -> None:
@@ -366,11 +399,11 @@ def test_swing_defaults_to_the_supply() -> None:
     blk = block_of(text=text.replace("life 5 years", "life 5 years\n  supply 5 V ±10%"))
     cand = solve_block(blk).best
     assert cand is not None
-    cl_hi = cand.output("load").high
-    # Rail-to-rail swing at the highest supply (common practice), drive formula from
-    # application notes.
-    d = 60 * (2 * math.pi * 12e6 * (1.5e-12 + cl_hi) * 5.5 / (2 * math.sqrt(2))) ** 2
+    # Rail-to-rail swing at the output node, up to the highest supply 5.5 V (common
+    # practice); the Pierce-loop drive formula from application notes.
+    d = _drive_by_corners(blk, cand.design, lambda supply: supply)
     assert cand.output("drive").high == pytest.approx(d, rel=1e-9)
+    assert blk.conditions.supply.high == pytest.approx(5.5)
 
 
 def test_imprecise_dielectric_is_flagged() -> None:

@@ -25,7 +25,9 @@ from timespec.physics.pierce import (
     budget_worst_case,
     critical_gm,
     critical_gm_caps,
+    crystal_swing,
     drive_level,
+    drive_level_from_output,
     equal_caps_for_load,
     gain_margin,
     load_capacitance,
@@ -268,3 +270,15 @@ def check_docstrings(module: ModuleType) -> None:
 
 def test_docstrings_complete() -> None:
     check_docstrings(pierce)
+
+
+def test_output_swing_to_crystal_by_hand() -> None:
+    # Pierce loop (application notes, from memory): V_x = V_out·(1 + C2/C1).
+    # 3 V at the output, C1 = 10 pF, C2 = 15 pF: 3·2.5 = 7.5 Vpp across the crystal.
+    assert float(crystal_swing(10e-12, 15e-12, 3.0)) == pytest.approx(7.5, rel=1e-12)
+    # Equal 12 pF, 3 pF stray, 1 Vpp at the output: CL = 9 pF, V_x = 2 Vpp,
+    # I_rms = 7.5398e7·(1.5 + 9)e-12·2/(2·sqrt 2) = 559.8 uA; 60 ohm·(559.8 uA)² =
+    # 18.80 uW (by hand), four times the 1 Vpp-across-the-crystal reading.
+    dl = float(drive_level_from_output(ESR, F_S, C_0, 12e-12, 12e-12, 3e-12, 1.0))
+    assert dl == pytest.approx(18.80e-6, rel=1e-3)
+    assert dl == pytest.approx(4 * float(drive_level(ESR, F_S, C_0, 9e-12, 1.0)), rel=1e-12)

@@ -161,7 +161,7 @@ _TABLE: list[Keyword] = [
     _kw("esr", {"crystal"}, "esr 60 ohm max", "crystal series resistance (a bound)"),
     _kw("drive", {"crystal"}, "drive 100 uW max", "largest drive level the crystal takes"),
     _kw("gm", {"crystal"}, "gm 5 mA/V", "oscillator amplifier transconductance"),
-    _kw("swing", {"crystal"}, "swing 3 V", "peak-to-peak voltage across the crystal"),
+    _kw("swing", {"crystal"}, "swing 3 V", "peak-to-peak at the inverter output (default: supply)"),
     _kw("tolerance", {"crystal"}, "tolerance ±10 ppm", "crystal calibration tolerance at 25 °C"),
     _kw(
         "stability",

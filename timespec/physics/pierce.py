@@ -19,7 +19,9 @@ __all__ = [
     "budget_worst_case",
     "critical_gm",
     "critical_gm_caps",
+    "crystal_swing",
     "drive_level",
+    "drive_level_from_output",
     "equal_caps_for_load",
     "gain_margin",
     "load_capacitance",
@@ -390,6 +392,103 @@ def drive_level(
     total = as_float_array(c_shunt) + as_float_array(c_load)
     i_rms = w * total * as_float_array(v_pp) / (2.0 * np.sqrt(2.0))
     return as_float_array(as_float_array(esr) * i_rms**2)
+
+
+@quiet
+def crystal_swing(c1: ArrayLike, c2: ArrayLike, v_out_pp: ArrayLike) -> FloatArray:
+    """Peak-to-peak voltage across the crystal for a given swing at the amplifier output.
+
+    Parameters
+    ----------
+    c1 : ArrayLike
+        Capacitor from the amplifier input to ground, F.
+    c2 : ArrayLike
+        Capacitor from the amplifier output to ground, F.
+    v_out_pp : ArrayLike
+        Peak-to-peak sine voltage at the amplifier output node, V.
+
+    Returns
+    -------
+    FloatArray
+        ``V_x = v_out_pp*(1 + C2/C1)``, V (twice the output swing for equal capacitors).
+
+    Notes
+    -----
+    At load resonance one loop current ``I`` flows through ``C2``, the crystal and
+    ``C1`` (the amplifier input draws nothing): ``V_out = I/(w*C2)``,
+    ``V_in = I/(w*C1)`` in opposite phase, so the crystal (with the stray across it)
+    sees ``V_in + V_out = V_out*(1 + C2/C1)``.  Exact for the lossless network; the
+    crystal's loss adds terms of order ``(ESR*w*(C0 + CL))**2``.
+
+    References
+    ----------
+    Published crystal-oscillator design application notes (the Pierce loop, from
+    memory); confirmed by nodal analysis of the network (any circuit-theory handbook).
+    """
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratio = as_float_array(c2) / as_float_array(c1)
+        return as_float_array(as_float_array(v_out_pp) * (1.0 + ratio))
+
+
+@quiet
+def drive_level_from_output(
+    esr: ArrayLike,
+    f: ArrayLike,
+    c_shunt: ArrayLike,
+    c1: ArrayLike,
+    c2: ArrayLike,
+    c_stray: ArrayLike,
+    v_out_pp: ArrayLike,
+) -> FloatArray:
+    """Power dissipated in the crystal of a Pierce stage for a given output-node swing.
+
+    Parameters
+    ----------
+    esr : ArrayLike
+        Crystal equivalent series resistance, ohm.
+    f : ArrayLike
+        Oscillation (load-resonant) frequency, Hz.
+    c_shunt : ArrayLike
+        Shunt capacitance ``C0``, F.
+    c1 : ArrayLike
+        Capacitor from the amplifier input to ground, F.
+    c2 : ArrayLike
+        Capacitor from the amplifier output to ground, F.
+    c_stray : ArrayLike
+        Stray capacitance in parallel with the crystal, F.
+    v_out_pp : ArrayLike
+        Peak-to-peak sine voltage at the amplifier output node, V (a rail-to-rail
+        inverter: the supply).
+
+    Returns
+    -------
+    FloatArray
+        Drive level, W.
+
+    Notes
+    -----
+    Loop current ``I = w*C2*V_out`` (the amplifier input draws nothing); crystal
+    voltage ``V_x = V_out*(1 + C2/C1)`` (:func:`crystal_swing`); at load resonance the
+    crystal with the stray across it is inductive, ``1/(w*C1*C2/(C1 + C2))``, so the
+    motional current is the loop current plus the current of ``C0 + Cs``:
+    ``I_m = w*(C0 + CL)*V_x`` with ``CL = C1*C2/(C1 + C2) + Cs``.  Then
+    ``I_m,rms = w*(C0 + CL)*V_out,pp*(1 + C2/C1)/(2*sqrt(2))`` and
+    ``DL = ESR*I_m,rms**2``: four times :func:`drive_level` at the output swing for
+    equal capacitors.  Exact for the lossless network.  With loss, the network driven
+    at its output node carries a smaller motional current: the closed form reads high
+    by ``u**2*(1 + k)**2`` to first order, ``u = ESR*w*(C0 + CL)``,
+    ``k = (C0 + CL)*(C1 + C2)/C1**2`` (0.2 % to 25 % for usual crystals), and never
+    reads low, a safe bound against a drive limit.
+
+    References
+    ----------
+    Published crystal-oscillator design application notes (the Pierce loop and drive
+    level, from memory); confirmed by an exact nodal solution of the network with the
+    Butterworth-Van Dyke crystal model (any circuit-theory handbook).
+    """
+    cl = load_capacitance(c1, c2, c_stray)
+    v_x = crystal_swing(c1, c2, v_out_pp)
+    return drive_level(esr, f, c_shunt, cl, v_x)
 
 
 @quiet

@@ -18,9 +18,11 @@ Choices where the statements are silent (documented here and in messages):
 
 * **stray**: 3 pF to 5 pF when absent (common practice for pins plus a short
   trace; published application notes quote 2 pF to 5 pF);
-* **swing** (peak-to-peak voltage across the crystal, for the drive level): the
-  supply window when absent, i.e. a rail-to-rail CMOS inverter swing (common
-  practice); the block's supply defaults to 3.3 V when not stated;
+* **swing** (peak-to-peak voltage at the inverter's OUTPUT node, for the drive
+  level): the supply window when absent, i.e. a rail-to-rail CMOS inverter swing
+  (common practice); the block's supply defaults to 3.3 V when not stated.  The
+  crystal itself sees about ``swing·(1 + C2/C1)`` (twice the swing for equal
+  capacitors, four times the power), which the drive level accounts for;
 * **capacitor range**: the policy's range clipped to 1 pF … 100 pF (load
   capacitors of crystals are a few pF to a few tens of pF; the package-wide
   default range 100 pF … 100 nF is meant for RC timing); when the clipped range

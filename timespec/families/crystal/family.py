@@ -151,9 +151,11 @@ class Crystal:
         ``cal + temp + age + pulling``; ``gm_crit`` from
         :func:`timespec.physics.pierce.critical_gm_caps` with the stray counted
         with ``C0`` (equal capacitors: ``4·ESR·(2πf)²·(C0 + CL)²``); drive
-        ``ESR·(2πf·(C0 + CL)·Vpp/(2√2))²``.  The gain margin is monotone in each
-        capacitor for the near-equal pairs this family builds, so its corners are
-        exact.
+        ``ESR·(2πf·(C0 + CL)·Vpp·(1 + C2/C1)/(2√2))²`` with ``Vpp`` the swing at
+        the amplifier output node
+        (:func:`timespec.physics.pierce.drive_level_from_output`).  The gain margin
+        is monotone in each capacitor for the near-equal pairs this family builds, so
+        its corners are exact.
         """
         f = needed(block, "frequency")
         cl_spec = needed(block, "load")
@@ -174,7 +176,9 @@ class Crystal:
             acc = x["xtal.cal"] + x["xtal.temp"] + x["xtal.age"] + pull
             gm_crit = pierce.critical_gm_caps(esr, f, c0 + cs, c1, c2)
             vpp = x["supply"] if swing is None else swing
-            drive = pierce.drive_level(esr, f, c0, cl, vpp)
+            # swing: peak-to-peak at the amplifier output node; the crystal sees
+            # about Vpp·(1 + C2/C1) of it (Pierce loop).
+            drive = pierce.drive_level_from_output(esr, f, c0, c1, c2, cs, vpp)
             out = {"accuracy": acc, "pulling": pull, "load": cl, "drive": drive}
             if gm is None:
                 out["gm_needed"] = MIN_GAIN_MARGIN * gm_crit
@@ -276,7 +280,7 @@ class Crystal:
         s = stray_window(block)
         out.extend(load_findings(block, cl_spec, s, capacitor_policy(block)))
         out.extend(gain_findings(block, extremes))
-        out.extend(drive_findings(block, extremes, f, c2))
+        out.extend(drive_findings(block, extremes, f, c1, c2))
         if not math.isclose(c1.value, c2.value, rel_tol=1e-9):
             out.append(
                 Finding(

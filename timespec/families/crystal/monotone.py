@@ -42,8 +42,10 @@ def declarations(block: Block) -> dict[str, tuple[tuple[str, ...], tuple[str, ..
     * ``pulling = Cm/(2·(C0 + CL)) − const`` falls as ``CL`` rises, and so does
       ``accuracy = cal + temp + age + pulling``, which rises with each ppm band
       (coefficient 1);
-    * ``drive = ESR·(2πf·(C0 + CL)·Vpp/(2√2))²`` rises with ``CL`` and, when the
-      swing is the supply, with the supply;
+    * ``drive = ESR·(2πf·Vpp/(2√2))²·((C0 + CL)·(1 + C2/C1))²`` with
+      ``(C0 + CL)·(1 + C2/C1) = (C0 + Cs)·(1 + C2/C1) + C2``: it rises with ``C2``
+      and ``Cs``, FALLS with ``C1`` (``∂/∂C1 = −(C0 + Cs)·C2/C1² ≤ 0``) and, when
+      the swing is the supply, rises with the supply;
     * ``gm_crit = ESR·ω²·(C0 + Cs + C1·C2/(C1 + C2))²·(C1 + C2)²/(C1·C2)`` rises
       with ``Cs``, so ``gain_margin = gm/gm_crit`` falls and ``gm_needed`` rises.
       It is NOT monotone in ``C1`` (its log-derivative has the sign of
@@ -69,7 +71,11 @@ def declarations(block: Block) -> dict[str, tuple[tuple[str, ...], tuple[str, ..
     caps_falling = ("pulling", "accuracy") if pull_ok else ()
     out: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {}
     for name in _CAP_RISING:
-        out[name] = (caps_rising, caps_falling)
+        if name.startswith("C1."):
+            # The crystal's share of the output swing, 1 + C2/C1, falls with C1.
+            out[name] = (("load",), (*caps_falling, "drive"))
+        else:
+            out[name] = (caps_rising, caps_falling)
     stray_rising = caps_rising + ((gain,) if gain == "gm_needed" else ())
     stray_falling = caps_falling + ((gain,) if gain == "gain_margin" else ())
     out["stray"] = (stray_rising, stray_falling)

@@ -88,9 +88,18 @@ def gain_findings(block: Block, extremes: Mapping[str, tuple[float, float]]) -> 
 
 
 def drive_findings(
-    block: Block, extremes: Mapping[str, tuple[float, float]], f: float, c2: Part
+    block: Block,
+    extremes: Mapping[str, tuple[float, float]],
+    f: float,
+    c1: Part,
+    c2: Part,
 ) -> list[Finding]:
-    """Findings on the worst-case drive level against the crystal's limit."""
+    """Findings on the worst-case drive level against the crystal's limit.
+
+    The drive level (``extremes["drive"]``) is computed from the swing at the
+    amplifier OUTPUT node (``swing``, or the supply rail to rail); the crystal sees
+    about ``1 + C2/C1`` times that swing (:func:`timespec.physics.pierce.crystal_swing`).
+    """
     limit = block.number("drive")
     high = extremes["drive"][1]
     if limit is None or high <= limit:
@@ -98,11 +107,14 @@ def drive_findings(
     r = float(pierce.series_resistor(f, c2.value))
     r_std = series.nearest("E12", r)
     swing = block.number("swing")
+    share = 1.0 + c2.value / c1.value
     basis = (
-        f"a {swing:g} Vpp swing"
+        f"a {swing:g} Vpp swing at the amplifier output"
         if swing is not None
-        else f"a rail-to-rail swing of up to {block.conditions.supply.high:g} V (state 'swing')"
+        else f"a rail-to-rail output swing of up to {block.conditions.supply.high:g} V "
+        "(state 'swing')"
     )
+    basis += f", about {share:.3g}× that across the crystal (1 + C2/C1)"
     return [
         Finding(
             "error",
