@@ -91,6 +91,12 @@ class TimerClass:
         Smallest timing resistor worth using, Ω.  [CP]
     output_drop
         Output high level below the supply at light load, V (feedback astable).  [Mem]
+    r_out_high, r_out_low
+        Output resistance band ``(low, high)`` of the high side (sourcing) and of
+        the low side (sinking), Ω: the output as a source with this resistance
+        behind its light-load level (feedback astable).  [Mem]
+    i_out_max
+        Largest output current the class should source or sink, A.  [Mem]/[DS]
     """
 
     name: str
@@ -105,6 +111,9 @@ class TimerClass:
     f_max: float
     r_min: float
     output_drop: float
+    r_out_high: tuple[float, float] = (50.0, 300.0)
+    r_out_low: tuple[float, float] = (50.0, 300.0)
+    i_out_max: float = 10e-3
 
     @property
     def ratio_band(self) -> tuple[float, float]:
@@ -149,6 +158,11 @@ TIMER_CLASSES: dict[str, TimerClass] = {
         f_max=300e3,  # [Mem] a few hundred kHz
         r_min=1e3,  # [CP]
         output_drop=1.7,  # [Mem] bipolar output stage sits 1.4–2 V below the supply
+        # Not rail-to-rail, so unused by the feedback circuit; output_drop models its
+        # high level.  Bands kept for completeness.
+        r_out_high=(5.0, 20.0),  # [Mem] emitter-follower high side, a few to tens of Ω
+        r_out_low=(5.0, 20.0),  # [Mem] saturated low side
+        i_out_max=200e-3,  # [DS] 200 mA source/sink
     ),
     "cmos": TimerClass(
         name="cmos",
@@ -163,6 +177,9 @@ TIMER_CLASSES: dict[str, TimerClass] = {
         f_max=1e6,  # [Mem] about 1 MHz
         r_min=1e3,  # [CP]
         output_drop=0.1,  # [Mem] CMOS output swings close to the rail at light load
+        r_out_high=(50.0, 300.0),  # [Mem] tens to a few hundred Ω per side (REFERENCE.md)
+        r_out_low=(50.0, 300.0),  # [Mem]
+        i_out_max=10e-3,  # [Mem] ±10 mA
     ),
 }
 

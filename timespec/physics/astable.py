@@ -36,6 +36,7 @@ __all__ = [
     "duty",
     "feedback_high_time",
     "feedback_low_time",
+    "feedback_output_currents",
     "frequency",
     "thermal_voltage",
 ]
@@ -393,6 +394,54 @@ def feedback_low_time(
     """
     lo, hi = _levels(v_supply, threshold_ratio)
     return charge_time(r, c, v_low, hi, lo, i_drain)
+
+
+def feedback_output_currents(
+    r: ArrayLike,
+    r_out_high: ArrayLike,
+    r_out_low: ArrayLike,
+    v_supply: ArrayLike,
+    threshold_ratio: ArrayLike,
+) -> tuple[FloatArray, FloatArray]:
+    """Output currents of the output-feedback astable at the switching moments.
+
+    Parameters
+    ----------
+    r : ArrayLike
+        Resistor from the output to the capacitor, ohm.
+    r_out_high : ArrayLike
+        Output resistance of the high (sourcing) side, ohm.
+    r_out_low : ArrayLike
+        Output resistance of the low (sinking) side, ohm.
+    v_supply : ArrayLike
+        Supply voltage, V (rail-to-rail output levels assumed: the largest current).
+    threshold_ratio : ArrayLike
+        Upper threshold as a fraction of the supply, ``k``.
+
+    Returns
+    -------
+    tuple of FloatArray
+        ``(i_source, i_sink)``, A: ``(V − kV/2)/(R + R_oh)`` just after the output
+        goes high (capacitor at the lower threshold) and ``kV/(R + R_ol)`` just
+        after it goes low (capacitor at the upper threshold).
+
+    Notes
+    -----
+    The largest currents of the cycle: the capacitor voltage is continuous, so
+    just after a switch the whole gap between the new output level and the
+    threshold the capacitor sits at falls across ``R + R_out``; it shrinks as
+    the capacitor follows.
+
+    References
+    ----------
+    Ohm's law across the series resistance at the switching instant (the
+    capacitor voltage cannot jump); any circuit-theory handbook.
+    """
+    lo, hi = _levels(v_supply, threshold_ratio)
+    v = as_float_array(v_supply)
+    i_src = (v - lo) / (as_float_array(r) + as_float_array(r_out_high))
+    i_snk = hi / (as_float_array(r) + as_float_array(r_out_low))
+    return i_src, i_snk
 
 
 @quiet

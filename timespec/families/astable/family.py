@@ -242,6 +242,7 @@ class Astable:
         out.extend(duty_findings(block, variant))
         if variant == "feedback":
             out.extend(feedback.rail_findings(block))
+            out.extend(feedback.current_findings(block, design))
         if variant == "diode":
             out.extend(diode.current_findings(block, design))
         hi_ex = extremes.get("high", (0.0, 0.0))

@@ -3,9 +3,11 @@
 The capacitor charges and discharges through ``R`` from the timer's own output,
 so the circuit needs an output that swings to the rails (the CMOS class,
 :data:`RAIL_OUTPUT_SHARE`) and runs close to 50 %, set by the output levels and
-the threshold ratio (:func:`feedback_duty_range`).  The output levels are
-modelled as a high level ``output.drop`` below the supply and a low level
-``output.low`` (up to :data:`FEEDBACK_LOW_MAX`); the discharge pin is unused.
+the threshold ratio (:func:`feedback_duty_range`).  The output is modelled as a
+source: a light-load high level ``output.drop`` below the supply behind
+``output.roh`` and a light-load low level ``output.low`` (up to
+:data:`FEEDBACK_LOW_MAX`) behind ``output.rol``, each resistance in series with
+``R``; the discharge pin is unused.
 Here: those constants and factors, the half-period model, the resistor options
 of the candidate search, and the error for a timer without rail-to-rail output.
 """
@@ -23,6 +25,8 @@ from timespec.families.candidates import snap
 from timespec.families.inputs import apply_part, drain_current
 from timespec.families.protocol import Finding, FloatArray, Inputs
 from timespec.model import Block
+from timespec.parts.part import Design
+from timespec.parts.rkm import format_rkm
 from timespec.physics import astable
 
 __all__ = [
@@ -30,6 +34,7 @@ __all__ = [
     "RAIL_OUTPUT_SHARE",
     "STALL_CAUSE",
     "UNUSED_TIMER_FACTORS",
+    "current_findings",
     "feedback_duty_range",
     "half_periods",
     "output_factors",
@@ -121,12 +126,15 @@ def output_factors(block: Block) -> list[Factor]:
     Returns
     -------
     list of Factor
-        ``output.drop`` (high level below the supply, ``0…output_drop`` V of the
-        timer class) and ``output.low`` (low level, ``0…FEEDBACK_LOW_MAX`` V).
+        ``output.drop`` (light-load high level below the supply, ``0…output_drop``
+        V of the timer class), ``output.low`` (light-load low level,
+        ``0…FEEDBACK_LOW_MAX`` V), and the output resistances ``output.roh``
+        (high side) and ``output.rol`` (low side), Ω, over the class's bands.
     """
     t = block.timer
     assert t is not None
     drop = t.output_drop
+    (oh_lo, oh_hi), (ol_lo, ol_hi) = t.r_out_high, t.r_out_low
     return [
         Factor(
             "output.drop",
@@ -144,6 +152,22 @@ def output_factors(block: Block) -> list[Factor]:
             FEEDBACK_LOW_MAX,
             group="timer",
         ),
+        Factor(
+            "output.roh",
+            f"{t.name} output high-side resistance ({oh_lo:g}…{oh_hi:g} Ω)",
+            0.5 * (oh_lo + oh_hi),
+            oh_lo,
+            oh_hi,
+            group="timer",
+        ),
+        Factor(
+            "output.rol",
+            f"{t.name} output low-side resistance ({ol_lo:g}…{ol_hi:g} Ω)",
+            0.5 * (ol_lo + ol_hi),
+            ol_lo,
+            ol_hi,
+            group="timer",
+        ),
     ]
 
 
@@ -159,16 +183,22 @@ def half_periods(x: Inputs) -> tuple[FloatArray, FloatArray]:
     -------
     tuple of FloatArray
         ``(tH, tL)``, s: :func:`~timespec.physics.astable.feedback_high_time` and
-        :func:`~timespec.physics.astable.feedback_low_time` with output levels
-        ``V − drop`` and ``V_ol``; ``inf`` where a threshold is never reached.
+        :func:`~timespec.physics.astable.feedback_low_time` with light-load
+        output levels ``V − drop`` and ``V_ol`` behind the series resistances
+        ``R + R_oh`` (charge) and ``R + R_ol`` (discharge); ``inf`` where a
+        threshold is never reached.  Without the ``output.roh``/``output.rol``
+        samples the output resistance is taken as zero.
     """
     c = apply_part(x, "C")
     v = x["supply"]
     k = x["timer.ratio"]
     i = drain_current(x)
     r = apply_part(x, "R")
-    th = astable.feedback_high_time(r, c, v - x["output.drop"], v, k, i)
-    tl = astable.feedback_low_time(r, c, x["output.low"], v, k, i)
+    zero = np.zeros(1)
+    r_h = r + x.get("output.roh", zero)
+    r_l = r + x.get("output.rol", zero)
+    th = astable.feedback_high_time(r_h, c, v - x["output.drop"], v, k, i)
+    tl = astable.feedback_low_time(r_l, c, x["output.low"], v, k, i)
     return th, tl
 
 
@@ -194,16 +224,22 @@ def resistor_options(
     Returns
     -------
     list of FloatArray
-        The pinned R; else ``R = T/(C·g)`` with the nominal gain ``g = T/(R·C)``
-        of the full model, corrected twice against it and snapped to both
-        standard neighbours.
+        The pinned R; else ``R = T/(C·g) − R_out`` with the nominal gain
+        ``g = T/(R·C)`` of the full model without output resistance and
+        ``R_out`` the mean of the nominal high- and low-side output resistances,
+        corrected twice against the full model and snapped to both standard
+        neighbours.
     """
     rp = block.resistors
     pin = block.pinned_part("R")
     if pin is not None:
         return [np.full(cs.shape, pin.value)]
-    g = run({"R": np.ones(1), "C": np.ones(1)})["period"][0]
-    r = period / (cs * g)
+    timer = block.timer
+    assert timer is not None
+    no_out = {"output.roh": np.zeros(1), "output.rol": np.zeros(1)}
+    g = run({"R": np.ones(1), "C": np.ones(1)}, no_out)["period"][0]
+    r_out = 0.25 * (sum(timer.r_out_high) + sum(timer.r_out_low))
+    r = np.maximum(period / (cs * g) - r_out, 0.5 * rp.low)
     for _ in range(2):
         t = run({"R": r, "C": cs})["period"]
         r = r * safe_ratio(period, t)
@@ -236,5 +272,52 @@ def rail_findings(block: Block) -> list[Finding]:
             f"the supply ({block.conditions.supply.low:g} V at the lowest), so the high "
             "time depends on load and supply. Use 'timer cmos', or 'circuit classic' / "
             "'circuit diode'.",
+        )
+    ]
+
+
+def current_findings(block: Block, design: Design) -> list[Finding]:
+    """Warning when the output current can pass the timer class's limit.
+
+    Parameters
+    ----------
+    block
+        An astable block (feedback circuit).
+    design
+        Parts ``R``, ``C``.
+
+    Returns
+    -------
+    list of Finding
+        ``output-current-limit`` when the largest output current over the box,
+        at the switching moments (capacitor at one threshold, output at the other
+        rail: :func:`~timespec.physics.astable.feedback_output_currents` with
+        ``V_max``, the threshold-ratio band, ``R_min`` and the smallest output
+        resistances), is above :attr:`TimerClass.i_out_max`; else empty.
+    """
+    timer = block.timer
+    assert timer is not None
+    part = design.part("R")
+    r_min = part.value * (1.0 - part.tolerance)
+    v_max = block.conditions.supply.high
+    k = np.array(timer.ratio_band, dtype=np.float64)
+    i_src, i_snk = astable.feedback_output_currents(
+        r_min, timer.r_out_high[0], timer.r_out_low[0], v_max, k
+    )
+    i_max = float(max(i_src.max(), i_snk.max()))
+    if i_max <= timer.i_out_max:
+        return []
+    r_out = min(timer.r_out_high[0], timer.r_out_low[0])
+    r_need = v_max / timer.i_out_max - r_out
+    return [
+        Finding(
+            "warning",
+            "output-current-limit",
+            f"the timer output carries up to {i_max * 1e3:.3g} mA through "
+            f"R = {format_rkm(part.value, 'resistance')}Ω at {v_max:g} V just after each "
+            f"switch, above the {timer.name} class limit of {timer.i_out_max * 1e3:.3g} mA; "
+            "the output levels then sag beyond the modelled bands. Use a larger R (at least "
+            f"{format_rkm(r_need / (1.0 - part.tolerance), 'resistance')}Ω with its "
+            "tolerance) with a smaller C.",
         )
     ]

@@ -33,14 +33,18 @@ __all__ = ["ALWAYS", "GUARDED", "PAYS", "RATIO_GUARDED", "declarations", "declar
 # I_c = max((V − vd − v)/Ra, (V − v)/(Ra + Rb)) — the two pieces of
 # :func:`~timespec.physics.astable.diode_high_time` meet at v_x, where the diode
 # current vanishes, and below v_x the diode branch carries more (clipping v_x into
-# [lo, hi] is the same max).  So tH rises with C, Ra, Rb, R, i, vd (v25) and drop
+# [lo, hi] is the same max); feedback with output resistance: I_c = (V − drop −
+# v)/(R + R_oh), so R_oh enters as R does (and R_ol in tL as R: Rt = R + R_ol,
+# ve = V_ol − i·Rt).  So tH rises with C, Ra, Rb, R, i, vd (v25) and drop
 # (each lowers I or scales it), and with k: d/dk ∫[ak, 2ak] g = a(2g(2ak) − g(ak))
 # > 0 with g = C/I rising in v.  An unreachable threshold (inf) stays unreachable
-# in the rising direction.  ``timer.ron`` and ``output.low`` do not enter tH.
+# in the rising direction.  ``timer.ron``, ``output.low`` and ``output.rol`` do
+# not enter tH.
 #
 # Low time.  tL = Rt·C·ln(1 + c/(c − ve)) with c = kV/2; classic and diode:
 # Rt = Rb + r_n, ve = v_n − i·Rt (discharge node v_n = V·ron/(Ra + ron),
-# r_n = Ra·ron/(Ra + ron)); feedback: Rt = R, ve = V_ol − i·R.  Rising in C;
+# r_n = Ra·ron/(Ra + ron)); feedback: Rt = R + R_ol, ve = V_ol − i·Rt (so R_ol
+# moves tL as R does; ``output.roh`` does not enter tL).  Rising in C;
 # falling in i (ve falls, Rt does not move; inf turns finite, never back).  Rising
 # in Rb or R where v_n (V_ol) ≤ c: with u = c − ve, z = c/u,
 # d tL/d Rt ∝ ln(1 + z) − z/(1 + z)·(1 − z + v_n/u) ≥ ln(1 + z) − z/(1 + z) ≥ 0.
@@ -96,6 +100,7 @@ ALWAYS: Mapping[str, _Declared] = {
         "leak": (("high",), ("low",)),
         "output.drop": (("high", "low"), ()),
         "output.low": (("high", "low"), ()),
+        "output.roh": (("high",), ()),
     },
 }
 
@@ -124,6 +129,8 @@ GUARDED: Mapping[str, _Declared] = {
         **_DRAIN_UP,
         "output.drop": (("high", "low", "period", "duty"), ("frequency",)),
         "output.low": (("high", "low", "period"), ("frequency", "duty")),
+        "output.roh": (("high", "period", "duty"), ("frequency",)),
+        "output.rol": (("low", "period"), ("frequency", "duty")),
     },
 }
 
@@ -169,8 +176,8 @@ def _finite_everywhere(facs: Mapping[str, Factor], variant: str) -> bool:
     charging current at ``hi`` beats the largest drain,
     ``V_min·(1 − k_max) − v_max > i_max·R_max`` (classic ``v = 0``,
     ``R = Ra + Rb``; diode also with ``v = vd_max``, ``R = Ra``; feedback
-    ``v = drop_max``, ``R = R``), which also gives ``V > i·Ra``; the low time is
-    finite, and rising in Rb, when ``ron_max/(Ra_min + ron_max) < k_min/2``
+    ``v = drop_max``, ``R = R + R_oh``), which also gives ``V > i·Ra``; the low
+    time is finite, and rising in Rb, when ``ron_max/(Ra_min + ron_max) < k_min/2``
     (feedback: ``V_ol,max < k_min·V_min/2``).
     """
     t_lo, t_hi = _span(facs, "temp")
@@ -180,7 +187,7 @@ def _finite_everywhere(facs: Mapping[str, Factor], variant: str) -> bool:
     i_max = _span(facs, "timer.ith")[1] + _span(facs, "leak")[1]
     room = v_min * (1.0 - k_hi)
     if variant == "feedback":
-        r_max = _bounds(facs, "R", t_dev)[1]
+        r_max = _bounds(facs, "R", t_dev)[1] + _span(facs, "output.roh")[1]
         high_ok = room - _span(facs, "output.drop")[1] > i_max * r_max
         return high_ok and _span(facs, "output.low")[1] < 0.5 * k_lo * v_min
     ra_lo, ra_hi = _bounds(facs, "RA", t_dev)
