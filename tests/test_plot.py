@@ -46,3 +46,20 @@ def test_cli_plot_refuses_an_unknown_image_type(tmp_path: Path) -> None:
         ["plot", str(DEMO), "-o", str(tmp_path / "x.gif")], stdout=io.StringIO(), stderr=err
     )
     assert code == 2 and "use .png, .svg or .pdf" in err.getvalue()
+
+
+@pytest.mark.parametrize("suffix", [".png", ".svg", ".pdf"])
+def test_charts_are_the_same_bytes_every_run(tmp_path: Path, suffix: str) -> None:
+    # Regression: SVG and PDF embedded the date, so every run differed.
+    pytest.importorskip("matplotlib")
+    out = []
+    for i in range(2):
+        dest = tmp_path / f"m{i}{suffix}"
+        code = main(
+            ["plot", str(DEMO), "-o", str(dest), "--samples", "300"],
+            stdout=io.StringIO(),
+            stderr=io.StringIO(),
+        )
+        assert code == 0
+        out.append(dest.read_bytes())
+    assert out[0] == out[1]

@@ -188,11 +188,25 @@ def write_atomic(path: str | Path, text: str) -> None:
     write_text_safely(path, text)
 
 
+#: Image metadata that would make two runs differ (dates), left out of every chart.
+_NO_DATES: dict[str, dict[str, None]] = {
+    "png": {},
+    "svg": {"Date": None},
+    "pdf": {"CreationDate": None, "ModDate": None},
+}
+
+
 def _figure_bytes(fig: object, fmt: str) -> bytes:
+    """The chart as image bytes, identical from run to run (no dates, fixed SVG ids)."""
     import io
 
+    import matplotlib
+
     buf = io.BytesIO()
-    fig.savefig(buf, format=fmt, dpi=120)  # type: ignore[attr-defined]
+    with matplotlib.rc_context({"svg.hashsalt": "timespec"}):
+        fig.savefig(  # type: ignore[attr-defined]
+            buf, format=fmt, dpi=120, metadata=_NO_DATES.get(fmt, {})
+        )
     return buf.getvalue()
 
 
