@@ -147,3 +147,11 @@ def test_cli_samples_are_capped() -> None:
     err = io.StringIO()
     code = main(["solve", "x.tspec", "--samples", str(10**9)], stdout=io.StringIO(), stderr=err)
     assert code == 2 and "at most 10,000,000" in err.getvalue()
+
+
+def test_api_samples_are_capped() -> None:
+    from timespec.model import MAX_SAMPLES
+
+    spec = timespec.parse(BLOCK)
+    with pytest.raises(ValueError, match="samples must lie from 1 to 10,000,000"):
+        timespec.solve(spec, samples=MAX_SAMPLES + 1)

@@ -45,6 +45,7 @@ import numpy as np
 from timespec.analysis import monte_carlo, rss, variance_shares
 from timespec.design.result import BlockResult, Result
 from timespec.families import family
+from timespec.model import MAX_SAMPLES
 
 __all__ = [
     "CHUNK",
@@ -176,8 +177,8 @@ def analyse_block(
     block = result.block
     n = block.statistics.samples if samples is None else samples
     s = block.statistics.seed if seed is None else seed
-    if n < 1:
-        raise ValueError(f"samples must be at least 1, got {n}")
+    if not 1 <= n <= MAX_SAMPLES:
+        raise ValueError(f"samples must lie from 1 to {MAX_SAMPLES:,}, got {n}")
     if s < 0:
         raise ValueError(f"the seed must not be negative, got {s}")
     fam = family(block.kind)
