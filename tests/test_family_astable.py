@@ -13,6 +13,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+import timespec
 from timespec.analysis import nominal_inputs, worst_case
 from timespec.design.solver import solve_block
 from timespec.errors import SpecValueError
@@ -377,3 +378,30 @@ def test_declared_monotone_factors_exact_feedback(
     text = DECLARE_POLICIES[policy]
     values = {"R": ra, "C": _capacitor(text, share)}
     _check_declarations_exact("feedback", text, timer, values)
+
+
+def test_discharge_current_past_the_on_resistance_test_current_is_reported() -> None:
+    # The discharge saturation voltage of the timer classes is specified at 4.5 mA
+    # (generic 555-type datasheets); read as a resistance it holds up to there.
+    # RA 1k at 5.25 V sinks 5.25 mA, plus the capacitor's k·V/RB through RB.
+    text = (
+        "astable fast:\n  frequency 10 kHz ±50%\n  supply 5 V ±5%\n"
+        "  use RA 1k 1%, RB 2k2 1%, C 22n C0G 5%\n"
+    )
+    res = solve_block(timespec.parse(text).blocks[0])
+    assert res.best is not None
+    (f,) = [x for x in res.best.findings if x.code == "discharge-on-resistance-range"]
+    k_hi = 1.0 - 3.0 ** -1.03  # bipolar class: ±3 % initial error as a threshold ratio
+    i_peak = 5.25 / 990.0 + k_hi * 5.25 / (2200 * 0.99)
+    assert "4.5 mA" in f.message
+    assert f"{i_peak / 4.5e-3:.3g}×" in f.message
+
+
+def test_light_discharge_current_gives_no_on_resistance_finding() -> None:
+    text = (
+        "astable slow:\n  frequency 10 Hz ±50%\n  supply 5 V ±5%\n"
+        "  use RA 100k 1%, RB 100k 1%, C 470n C0G 5%\n"
+    )
+    res = solve_block(timespec.parse(text).blocks[0])
+    assert res.best is not None
+    assert "discharge-on-resistance-range" not in {x.code for x in res.best.findings}

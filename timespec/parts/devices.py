@@ -97,6 +97,9 @@ class TimerClass:
         behind its light-load level (feedback astable).  [Mem]
     i_out_max
         Largest output current the class should source or sink, A.  [Mem]/[DS]
+    r_on_test_current
+        Discharge current at which the saturation voltage behind ``r_on_max`` is
+        specified, A.  [DS]
     """
 
     name: str
@@ -114,6 +117,27 @@ class TimerClass:
     r_out_high: tuple[float, float] = (50.0, 300.0)
     r_out_low: tuple[float, float] = (50.0, 300.0)
     i_out_max: float = 10e-3
+    r_on_test_current: float = 4.5e-3
+
+    @property
+    def r_on_held(self) -> Held:
+        """Where ``r_on_max`` holds: discharge currents up to its test current.
+
+        Returns
+        -------
+        Held
+            The saturation voltage is specified at :attr:`r_on_test_current`;
+            read as a resistance it holds up to that current (a transistor's
+            saturation voltage grows faster than linearly above it).  [DS]
+        """
+        return Held(
+            f"{self.name} timer discharge on-resistance ≤ {self.r_on_max:.3g} Ω",
+            "discharge current",
+            0.0,
+            self.r_on_test_current,
+            "current",
+            "[DS] saturation voltage specified at the test current",
+        )
 
     @property
     def ratio_band(self) -> tuple[float, float]:

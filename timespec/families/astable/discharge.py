@@ -18,6 +18,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from timespec.families.assumptions import Stretch, assumption_findings
 from timespec.families.astable.nominal import NominalRun
 from timespec.families.candidates import snap
 from timespec.families.protocol import Finding, FloatArray
@@ -158,14 +159,31 @@ def discharge_findings(block: Block, design: Design) -> list[Finding]:
     -------
     list of Finding
         ``discharge-current`` (with the smallest RA) when ``V_max/RA_min`` is
-        above the class's ``i_discharge_max``; else empty.
+        above the class's ``i_discharge_max``; ``discharge-on-resistance-range``
+        when the pin's peak current (RA's current plus the capacitor's through
+        RB at the switching moment) passes the current at which the class's
+        on-resistance is specified; else empty.
     """
     timer = block.timer
     assert timer is not None
     ra = design.part("RA")
     v_max = block.conditions.supply.high
     i_dis = float(astable.discharge_current(v_max, ra.value * (1 - ra.tolerance)))
-    out: list[Finding] = []
+    rb = design.part("RB")
+    k_hi = timer.ratio_band[1]
+    # At the switching moment the capacitor sits at k·V and discharges through RB.
+    i_peak = i_dis + k_hi * v_max / (rb.value * (1 - rb.tolerance))
+    out: list[Finding] = assumption_findings(
+        [
+            Stretch(
+                timer.r_on_held,
+                i_peak,
+                i_peak,
+                "Use larger RA and RB with a smaller C so the discharge pin sinks less.",
+            )
+        ],
+        "discharge-on-resistance-range",
+    )
     if i_dis > timer.i_discharge_max:
         ra_min = v_max / timer.i_discharge_max
         out.append(
