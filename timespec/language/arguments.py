@@ -332,9 +332,7 @@ def window_of(term: Term, kinds: Sequence[str | None], keyword: str, *, exact_ok
             n = term.nominal.value
             return Window(n - minus, n + plus, str(term.nominal.kind), n)
         if isinstance(term, Range):
-            low, high = term.low, term.high
-            if low.kind is None and high.kind is not None:
-                low = Quantity(low.value, high.kind, low.text, low.pos)
+            low, high = term.low, term.high  # the parser gave a bare first end the unit
             check_kind(low, kinds, keyword)
             check_kind(high, kinds, keyword)
             if low.kind != high.kind:

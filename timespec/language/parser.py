@@ -209,11 +209,12 @@ class _Builder(Transformer[Token, Any]):
         return Toleranced(children[0], children[1], children[0].pos)
 
     def range(self, children: list[Any]) -> Range:
-        return Range(children[0], children[1], children[0].pos)
+        return Range(_inherit_unit(children[0], children[1]), children[1], children[0].pos)
 
     def fraction_range(self, children: list[Any]) -> Fraction:
         pos = children[0].pos
-        return Fraction(Range(children[0], children[1], pos), str(children[2]), pos)
+        low = _inherit_unit(children[0], children[1])
+        return Fraction(Range(low, children[1], pos), str(children[2]), pos)
 
     def fraction_toleranced(self, children: list[Any]) -> Fraction:
         pos = children[0].pos
@@ -319,6 +320,36 @@ class _Builder(Transformer[Token, Any]):
         except ValueError as exc:
             raise _positioned(SpecUnitError, str(exc), self._tpos(tok), None) from None
         return Quantity(value, dimension, str(tok), self._tpos(tok))
+
+
+_LEADING_NUMBER = re.compile(r"-?(\d+(\.\d*)?|\.\d+)([eE][+\-]?\d+)?\s*")
+
+
+def _inherit_unit(low: Quantity, high: Quantity) -> Quantity:
+    """The first end of a range with the unit of the second when it was left off.
+
+    ``20 to 40 ms`` means 20 ms to 40 ms, ``-50 to 100 ppm`` means −50 ppm to
+    100 ppm, ``3 to 5 pF`` 3 pF to 5 pF: the second end's unit (with its scale
+    and offset) applies to a bare first end, for every kind of quantity.  A first
+    end with a unit of its own, or a second end without one (or an RKM code such
+    as ``4k7``, which carries no separate unit), is left as written.
+    """
+    if low.kind is not None or high.kind is None:
+        return low
+    m = _LEADING_NUMBER.match(high.text)
+    if m is None or m.end() >= len(high.text):
+        return low
+    unit = high.text[m.end() :]
+    per_year = _PER_YEAR.match(unit)
+    try:
+        info = unit_info(per_year.group("num") if per_year else unit)
+    except ValueError:
+        return low
+    if info.kind is None:
+        return low
+    kind = "rate" if per_year else info.kind
+    gap = "" if unit == "%" else " "
+    return Quantity(low.value * info.scale + info.offset, kind, f"{low.text}{gap}{unit}", low.pos)
 
 
 def _adjacent(first: Token, second: Token) -> bool:
