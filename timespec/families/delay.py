@@ -40,11 +40,12 @@ from timespec.families.capacitors import dielectric_findings
 from timespec.families.goals import declare_monotone
 from timespec.families.inputs import apply_part, condition_factors, part_factors
 from timespec.families.logicinput import (
-    gate_delay_band,
+    gate_delay_factor,
     gate_stretches,
     leakage_note,
     node_leakage_band,
     stray_band,
+    stray_factor,
     stray_finding,
 )
 from timespec.families.protocol import Evaluate, Finding, FloatArray, Inputs, Output
@@ -241,31 +242,9 @@ class Delay:
                     group="leakage",
                 )
             )
-        cs_lo, cs_hi = stray_band(block.gate)
-        out.append(
-            Factor(
-                "stray",
-                f"input and board stray ({format_quantity(cs_lo, 'capacitance')}…"
-                f"{format_quantity(cs_hi, 'capacitance')})",
-                0.5 * (cs_lo + cs_hi),
-                cs_lo,
-                cs_hi,
-                group="stray",
-            )
-        )
+        out.append(stray_factor(block.gate))
         if block.gate is not None:
-            d_lo, d_hi = gate_delay_band(block.gate, block.conditions.supply.low)
-            out.append(
-                Factor(
-                    "gate.delay",
-                    f"{block.gate.name} gate propagation delay ({format_quantity(d_lo, 'time')}…"
-                    f"{format_quantity(d_hi, 'time')})",
-                    0.5 * (d_lo + d_hi),
-                    d_lo,
-                    d_hi,
-                    group="gate",
-                )
-            )
+            out.append(gate_delay_factor(block.gate, block.conditions.supply.low, "gate"))
         rising, falling = declarations(block, leak.low, leak.high)
         return [declare_monotone(f, "delay", rising, falling) for f in out]
 

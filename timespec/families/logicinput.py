@@ -24,6 +24,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from timespec.analysis import Factor
 from timespec.families.assumptions import Stretch, assumption_findings
 from timespec.families.capacitors import capacitor_leakage
 from timespec.families.protocol import Finding
@@ -41,10 +42,12 @@ __all__ = [
     "STRAY_RATIO",
     "NodeLeakage",
     "gate_delay_band",
+    "gate_delay_factor",
     "gate_stretches",
     "leakage_note",
     "node_leakage_band",
     "stray_band",
+    "stray_factor",
     "stray_finding",
 ]
 
@@ -159,6 +162,60 @@ def stray_band(gate: GateClass | None) -> tuple[float, float]:
     """
     pin = gate.c_input if gate is not None else LOGIC_INPUT_CAPACITANCE
     return pin[0] + BOARD_STRAY[0], pin[1] + BOARD_STRAY[1]
+
+
+def stray_factor(gate: GateClass | None) -> Factor:
+    """The node's stray capacitance (input pin plus board) as a varying input.
+
+    Parameters
+    ----------
+    gate
+        The gate class, or ``None`` for a generic CMOS logic input.
+
+    Returns
+    -------
+    Factor
+        ``stray``, F, over :func:`stray_band`.
+    """
+    cs_lo, cs_hi = stray_band(gate)
+    return Factor(
+        "stray",
+        f"input and board stray ({format_quantity(cs_lo, 'capacitance')}…"
+        f"{format_quantity(cs_hi, 'capacitance')})",
+        0.5 * (cs_lo + cs_hi),
+        cs_lo,
+        cs_hi,
+        group="stray",
+    )
+
+
+def gate_delay_factor(gate: GateClass, supply_low: float, group: str) -> Factor:
+    """The gate's propagation delay as a varying input.
+
+    Parameters
+    ----------
+    gate
+        The gate class.
+    supply_low
+        The design's lowest supply, V.
+    group
+        The factor group it is reported in.
+
+    Returns
+    -------
+    Factor
+        ``gate.delay``, s, over :func:`gate_delay_band`.
+    """
+    d_lo, d_hi = gate_delay_band(gate, supply_low)
+    return Factor(
+        "gate.delay",
+        f"{gate.name} gate propagation delay ({format_quantity(d_lo, 'time')}…"
+        f"{format_quantity(d_hi, 'time')})",
+        0.5 * (d_lo + d_hi),
+        d_lo,
+        d_hi,
+        group=group,
+    )
 
 
 def gate_delay_band(gate: GateClass, supply_low: float) -> tuple[float, float]:

@@ -45,9 +45,10 @@ from timespec.families.capacitors import dielectric_findings
 from timespec.families.inputs import apply_part, condition_factors, part_factors
 from timespec.families.logicinput import (
     gate_delay_band,
+    gate_delay_factor,
     gate_stretches,
     node_leakage_band,
-    stray_band,
+    stray_factor,
     stray_finding,
 )
 from timespec.families.protocol import Evaluate, Finding, FloatArray, Inputs, Output
@@ -167,30 +168,8 @@ class Relaxation:
                 group="leakage",
             )
         )
-        cs_lo, cs_hi = stray_band(gate)
-        out.append(
-            Factor(
-                "stray",
-                f"input and board stray ({format_quantity(cs_lo, 'capacitance')}…"
-                f"{format_quantity(cs_hi, 'capacitance')})",
-                0.5 * (cs_lo + cs_hi),
-                cs_lo,
-                cs_hi,
-                group="stray",
-            )
-        )
-        d_lo, d_hi = gate_delay_band(gate, block.conditions.supply.low)
-        out.append(
-            Factor(
-                "gate.delay",
-                f"{gate.name} gate propagation delay ({format_quantity(d_lo, 'time')}…"
-                f"{format_quantity(d_hi, 'time')})",
-                0.5 * (d_lo + d_hi),
-                d_lo,
-                d_hi,
-                group="gate delay",
-            )
-        )
+        out.append(stray_factor(gate))
+        out.append(gate_delay_factor(gate, block.conditions.supply.low, "gate delay"))
         return out
 
     def evaluate(self, block: Block, variant: str) -> Evaluate:
