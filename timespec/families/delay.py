@@ -79,12 +79,12 @@ def _threshold_volts(block: Block) -> tuple[float, float]:
     return win.low, win.high
 
 
-#: Factors in which the delay never falls, whatever the block: more C (tolerance,
+#: Factors in which the delay never falls, whatever the block: more C (tolerance, DC bias,
 #: ageing, class-2 or electrolytic drift; not the tempco, which multiplies ``T − 25``
 #: and so changes sign across the ambient range; the stray, which adds to C) and
 #: more gate delay.  ``t = t_pd + R·(C + Cs)·ln(q)`` with ``q ≥ 1`` (or ``inf``)
 #: independent of C, Cs and t_pd, so ``t`` rises with each of them.
-DELAY_RISING_ALWAYS = frozenset({"C.tol", "C.age", "C.drift", "stray", "gate.delay"})
+DELAY_RISING_ALWAYS = frozenset({"C.tol", "C.age", "C.drift", "C.bias", "stray", "gate.delay"})
 #: Factors in which the delay never falls once the start voltage lies below every
 #: threshold of the box (``v0 < Vth``).  Write ``V' = V − i·R`` (``i ≥ 0``); then
 #: ``q = (V' − v0)/(V' − Vth) = 1 + (Vth − v0)/(V' − Vth)`` for ``V' > Vth`` and

@@ -47,13 +47,24 @@ __all__ = ["OneShot"]
 
 
 #: Factors in which the width never falls, anywhere in the box: more R or C (any
-#: tolerance, ageing or dielectric drift), a higher threshold or control voltage, or
+#: tolerance, ageing, dielectric drift or DC bias), a higher threshold or control voltage, or
 #: more current drawn from the node (the node settles lower, so it charges longer).
 #: ``t = R·C·ln((V' − v0)/(V' − vth))`` with ``V' = V − i·R`` and ``v0 = V'·ron/(R + ron)``:
 #: the ratio ``V'·R/(R + ron)/(V' − vth)`` grows with R, with vth and with i, and the
 #: timer's drift terms only scale it by a positive factor.
 WIDTH_RISING = frozenset(
-    {"R.tol", "R.age", "C.tol", "C.age", "C.drift", "timer.ratio", "timer.ith", "leak", "control"}
+    {
+        "R.tol",
+        "R.age",
+        "C.tol",
+        "C.age",
+        "C.drift",
+        "C.bias",
+        "timer.ratio",
+        "timer.ith",
+        "leak",
+        "control",
+    }
 )
 #: Factors in which the width never rises: the discharge on-resistance lifts the start.
 WIDTH_FALLING = frozenset({"timer.ron"})

@@ -20,8 +20,8 @@ from timespec.families.inputs import REFERENCE_C
 __all__ = ["ALWAYS", "GUARDED", "PAYS", "RATIO_GUARDED", "declarations", "declared"]
 
 # Notation: effective parts Ra, Rb, R, C (each a positive product of its value and
-# (1 + tol)(1 + age)(1 + drift), so rising in those factors; the ``.tc`` factors
-# multiply (T − 25), change sign and are never declared), drain i = ith + leak ≥ 0,
+# (1 + tol)(1 + age)(1 + drift), and C also (1 + bias), so rising in those factors; the ``.tc``
+# factors multiply (T − 25), change sign and are never declared), drain i = ith + leak ≥ 0,
 # thresholds lo = kV/2, hi = kV.  Both half-periods are multiplied by the same
 # timer scale s = (1 + drift·(T − 25))(1 + vco·(V − V_nom)), which must be positive
 # (checked on the box, else nothing is declared); temperature, supply, the timer's
@@ -69,7 +69,7 @@ __all__ = ["ALWAYS", "GUARDED", "PAYS", "RATIO_GUARDED", "declarations", "declar
 # (k − ρ)(k/2 − ρ) ≥ ρ(1 − k/2)(1 − k), worst at k_min and ρ_max.
 
 _Declared = Mapping[str, tuple[tuple[str, ...], tuple[str, ...]]]
-_PARTS_UP = ("tol", "age", "drift")
+_PARTS_UP = ("tol", "age", "drift", "bias")
 _C_ONLY = {f"C.{p}": (("high", "low", "period"), ("frequency",)) for p in _PARTS_UP}
 
 #: Declarations that hold everywhere the timer scale is positive: ``factor →

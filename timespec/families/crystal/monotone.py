@@ -12,7 +12,7 @@ __all__ = ["declarations", "declare"]
 
 #: Factors that raise both capacitors' values everywhere in the box (not the
 #: tempco, which multiplies ``T − 25`` and changes sign across the ambient range).
-_CAP_RISING = ("C1.tol", "C1.age", "C1.drift", "C2.tol", "C2.age", "C2.drift")
+_CAP_RISING = tuple(f"{c}.{p}" for c in ("C1", "C2") for p in ("tol", "age", "drift", "bias"))
 #: The crystal's own ppm bands.
 _XTAL = ("xtal.cal", "xtal.temp", "xtal.age")
 
