@@ -126,7 +126,8 @@ def _width_closed_form(x: dict[str, object]) -> object:
     RC charging law t = R·C·ln((V_eff − v0)/(V_eff − k·V)), V_eff = V − i·R, v0 from
     the R / r_on divider with the drain as a Norton source (circuit-theory
     handbook); part value × (1 + tol)(1 + tc·ΔT)(1 + age); timer drift and supply
-    sensitivity as relative scalings (555-type timer datasheets, generic class).
+    sensitivity as relative scalings (555-type timer datasheets, generic class); the
+    node's stray (timer pins and board) adds to C, the output delay to the width.
     """
 
     def g(k: str) -> object:
@@ -140,13 +141,14 @@ def _width_closed_form(x: dict[str, object]) -> object:
             * (1 + g(f"{ref}.age"))  # type: ignore[operator]
         )
 
-    r, c, v = part("R"), part("C"), x["supply"]
+    r, c, v = part("R"), part("C") + g("stray"), x["supply"]  # type: ignore[operator]
     ron, i = x["timer.ron"], g("timer.ith")
     v0 = v * ron / (r + ron) - i * (r * ron / (r + ron))  # type: ignore[operator]
     veff = v - i * r  # type: ignore[operator]
     t = r * c * umath.log((veff - v0) / (veff - x["timer.ratio"] * v))  # type: ignore[operator]
     t = t * (1 + x["timer.drift"] * 1e-6 * (x["temp"] - 25.0))  # type: ignore[operator]
-    return t * (1 + x["timer.vco"] * (x["supply"] - x["supply.nominal"]))  # type: ignore[operator]
+    t = t * (1 + x["timer.vco"] * (x["supply"] - x["supply.nominal"]))  # type: ignore[operator]
+    return t + g("timer.delay")  # type: ignore[operator]
 
 
 def test_rss_and_monte_carlo_agree_with_uncertainties_package(small: BlockResult) -> None:

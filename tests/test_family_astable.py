@@ -58,6 +58,7 @@ def test_classic_nominal_relations() -> None:
     x["timer.ratio"] = np.array([2.0 / 3.0])
     x["timer.ron"] = np.array([0.0])
     x["timer.ith"] = np.array([0.0])
+    x["stray"] = np.array([0.0])  # the ideal law has no node stray
     out = FAM.evaluate(b, "classic")(x)
     # common practice: f = 1/(ln 2·(RA + 2RB)·C) ≈ 1.443/((RA + 2RB)·C)
     assert out["frequency"][0] == pytest.approx(1.0 / (math.log(2) * (ra + 2 * rb) * c), rel=1e-9)
@@ -259,14 +260,15 @@ def test_solver_completes_for_each_circuit() -> None:
     variant=st.sampled_from(["classic", "diode"]),
 )
 def test_times_scale_with_capacitance(k: float, ra: float, rb: float, variant: str) -> None:
-    # first-order RC law (any circuit-theory handbook): every time is proportional to C,
-    # so the duty cycle does not depend on C
+    # first-order RC law (any circuit-theory handbook): every time is proportional to the
+    # node's whole capacitance (C and its stray), so the duty cycle does not depend on it
     b = block("  frequency 2 kHz ±12%\n")
     design = FAM._design(b, variant, {"RA": ra, "RB": rb, "C": 10e-9})
     x = nominal_inputs(FAM.factors(b, design))
     model = FAM.evaluate(b, variant)
     one = model(x)
     x["C.value"] = x["C.value"] * k
+    x["stray"] = x["stray"] * k
     scaled = model(x)
     assert scaled["period"][0] == pytest.approx(k * one["period"][0], rel=1e-9)
     assert scaled["duty"][0] == pytest.approx(one["duty"][0], rel=1e-9)

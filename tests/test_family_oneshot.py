@@ -61,6 +61,8 @@ def test_ln3_law_at_nominal_thresholds() -> None:
     x["timer.ratio"] = np.array([2.0 / 3.0])
     x["timer.ron"] = np.array([0.0])
     x["timer.ith"] = np.array([0.0])
+    x["stray"] = np.array([0.0])
+    x["timer.delay"] = np.array([0.0])
     w = fam.evaluate(blk, "")(x)["width"][0]
     assert w == pytest.approx(math.log(3.0) * 0.1, rel=1e-12)
     assert w == pytest.approx(1.0986 * 0.1, rel=1e-4)
@@ -100,7 +102,8 @@ def test_matches_scipy_integration_at_the_extreme_corner() -> None:
     at = {f.name: f.nominal for f in facs} | dict(ex.high_at)
     dt = at["temp"] - 25.0
     r = at["R.value"] * (1 + at["R.tol"]) * (1 + at["R.tc"] * 1e-6 * dt)
-    c = at["C.value"] * (1 + at["C.tol"]) * (1 + at["C.tc"] * 1e-6 * dt)
+    # the timer's pins and the board add their stray to C
+    c = at["C.value"] * (1 + at["C.tol"]) * (1 + at["C.tc"] * 1e-6 * dt) + at["stray"]
     v = at["supply"]
     i = at["timer.ith"] + at.get("leak", 0.0)
     ron = at["timer.ron"]
@@ -117,23 +120,28 @@ def test_matches_scipy_integration_at_the_extreme_corner() -> None:
     sol = solve_ivp(rhs, (0, 10 * r * c), [v0], events=hit, rtol=1e-11, atol=1e-12, method="DOP853")
     t_ode = sol.t_events[0][0]
     scale = (1 + at["timer.drift"] * 1e-6 * dt) * (1 + at["timer.vco"] * (v - at["supply.nominal"]))
-    assert t_ode * scale == pytest.approx(out.high, rel=1e-7)
+    # the output falls the timer's delay after the crossing
+    assert t_ode * scale + at["timer.delay"] == pytest.approx(out.high, rel=1e-7)
 
 
 @settings(max_examples=25, deadline=None)
 @given(k=st.floats(0.1, 10.0))
 def test_width_scales_with_capacitance(k: float) -> None:
-    # Scaling law of the RC charge (first-order RC law): t ∝ C when nothing else changes.
+    # Scaling law of the RC charge (first-order RC law): the charge time ∝ the node's
+    # whole capacitance (C and its stray) when nothing else changes; the output delay
+    # adds to it.
     blk = block()
     fam = family("oneshot")
     d = Design(
         (resistor_part("R", 100e3, blk.resistors), capacitor_part("C", 1e-7, blk.capacitors))
     )
     x = nominal_inputs(fam.factors(blk, d))
+    td = float(x["timer.delay"][0])
     w1 = fam.evaluate(blk, "")(x)["width"][0]
     x["C.value"] = x["C.value"] * k
+    x["stray"] = x["stray"] * k
     w2 = fam.evaluate(blk, "")(x)["width"][0]
-    assert w2 == pytest.approx(k * w1, rel=1e-12)
+    assert w2 - td == pytest.approx(k * (w1 - td), rel=1e-12)
 
 
 def test_pinned_design_is_checked_not_chosen() -> None:
@@ -237,6 +245,8 @@ def test_control_voltage_sets_the_threshold() -> None:
     x = nominal_inputs(fam.factors(blk, res.best.design))
     x["timer.ron"] = np.array([0.0])
     x["timer.ith"] = np.array([0.0])
+    x["stray"] = np.array([0.0])
+    x["timer.delay"] = np.array([0.0])
     w = fam.evaluate(blk, "")(x)["width"][0]
     assert w == pytest.approx(619e3 * 220e-9 * math.log(12.0 / 6.0), rel=1e-12)
 
@@ -296,3 +306,58 @@ def test_declared_monotone_factors_give_the_full_worst_case(
     fast = worst_case(facs, fam.evaluate(blk, ""))["width"]
     full = worst_case(plain, fam.evaluate(blk, ""))["width"]
     assert (fast.low, fast.high) == (full.low, full.high)
+
+
+@pytest.mark.parametrize("c", [100e-12, 1e-9, 1e-6])
+def test_stray_and_output_delay_lengthen_the_pulse_as_an_ode_says(c: float) -> None:
+    # scipy solve_ivp of the timing node C_total·dv/dt = (V − v)/R − i with the timer's
+    # pins and the board in C_total = C + Cs; the output falls t_pd after the crossing
+    # of the upper threshold (the charge starts on the edge that raises the output).
+    from scipy.integrate import solve_ivp
+
+    blk = block()
+    fam = family("oneshot")
+    d = Design((resistor_part("R", 47e3, blk.resistors), capacitor_part("C", c, blk.capacitors)))
+    facs = fam.factors(blk, d)
+    names = {f.name: f for f in facs}
+    assert names["stray"].high > names["stray"].low > 0.0
+    assert names["timer.delay"].high > names["timer.delay"].low > 0.0
+    x = nominal_inputs(facs)
+    x["timer.ron"] = np.array([0.0])
+    x["timer.drift"] = np.array([0.0])
+    x["timer.vco"] = np.array([0.0])
+    cs, td = float(x["stray"][0]), float(x["timer.delay"][0])
+    v, k, i = float(x["supply"][0]), float(x["timer.ratio"][0]), float(x["timer.ith"][0])
+    c_eff = float(x["C.value"][0] * (1 + x["C.tol"][0])) + cs
+    r_eff = float(x["R.value"][0] * (1 + x["R.tol"][0]))
+
+    def hit(_t: float, y: np.ndarray) -> float:
+        return float(y[0] - k * v)
+
+    hit.terminal = True  # type: ignore[attr-defined]
+    sol = solve_ivp(
+        lambda _t, y: [((v - y[0]) / r_eff - i) / c_eff],
+        (0.0, 10.0 * r_eff * c_eff),
+        [0.0],
+        events=hit,
+        rtol=1e-11,
+        atol=1e-12 * v,
+    )
+    expected = float(sol.t_events[0][0]) + td
+    w = fam.evaluate(blk, "")(x)["width"][0]
+    assert w == pytest.approx(expected, rel=1e-8)
+
+
+def test_small_capacitor_on_a_timer_node_is_warned() -> None:
+    # common practice: a timing capacitor within 10x the node's stray (timer pins and
+    # board, a few pF each) makes the timing depend on the layout
+    blk = block()
+    fam = family("oneshot")
+    d = Design(
+        (resistor_part("R", 1e6, blk.resistors), capacitor_part("C", 100e-12, blk.capacitors))
+    )
+    found = fam.findings(blk, d, {"width": (1e-4, 1.2e-4)})
+    assert any(f.code == "stray-comparable" and "timer pins" in f.message for f in found)
+    d = Design((resistor_part("R", 1e5, blk.resistors), capacitor_part("C", 1e-6, blk.capacitors)))
+    found = fam.findings(blk, d, {"width": (0.1, 0.12)})
+    assert not any(f.code == "stray-comparable" for f in found)

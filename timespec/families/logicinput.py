@@ -49,6 +49,7 @@ __all__ = [
     "stray_band",
     "stray_factor",
     "stray_finding",
+    "stray_warning",
 ]
 
 #: A timing capacitor below this multiple of the largest stray draws a warning.
@@ -254,7 +255,27 @@ def stray_finding(block: Block, c: Part, gate: GateClass | None) -> list[Finding
     list of Finding
         One ``stray-comparable`` warning, or nothing.
     """
-    lo, hi = stray_band(gate)
+    return stray_warning(c, stray_band(gate), "input pin and board")
+
+
+def stray_warning(c: Part, band: tuple[float, float], where: str) -> list[Finding]:
+    """Warn when a timing capacitor is within :data:`STRAY_RATIO` times a node's stray.
+
+    Parameters
+    ----------
+    c
+        The timing capacitor.
+    band
+        The node's stray capacitance ``(low, high)``, F.
+    where
+        What the stray is made of, in words (``"input pin and board"``).
+
+    Returns
+    -------
+    list of Finding
+        One ``stray-comparable`` warning, or nothing.
+    """
+    lo, hi = band
     if c.value >= STRAY_RATIO * hi:
         return []
     share = hi / (c.value + hi) * 100
@@ -264,7 +285,7 @@ def stray_finding(block: Block, c: Part, gate: GateClass | None) -> list[Finding
             "stray-comparable",
             f"C = {format_quantity(c.value, 'capacitance')} is within {STRAY_RATIO:g}× of the "
             f"stray at the node ({format_quantity(lo, 'capacitance')}…"
-            f"{format_quantity(hi, 'capacitance')}: input pin and board), which is up to "
+            f"{format_quantity(hi, 'capacitance')}: {where}), which is up to "
             f"{share:.0f} % of the timing capacitance and depends on the layout. The worst "
             "case includes the band; use C ≥ "
             f"{format_quantity(STRAY_RATIO * hi, 'capacitance')} with a smaller R.",

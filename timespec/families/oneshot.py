@@ -8,7 +8,10 @@ timer class's threshold-ratio band (from its guaranteed timing error), the
 discharge transistor's on-resistance (the capacitor starts slightly above
 0 V), the threshold input current and node leakage (a drain on the charging
 current), the class's timing drift with temperature and supply, a forced
-control voltage, part tolerance, tempco or dielectric drift, and ageing.
+control voltage, part tolerance, tempco or dielectric drift, and ageing; the
+stray the timer's pins and the board add to C and the delay from the threshold
+crossing to the output edge (:mod:`timespec.families.timernode`):
+``width = s·t_charge(R, C + Cs) + t_pd``.
 """
 
 from __future__ import annotations
@@ -37,6 +40,7 @@ from timespec.families.inputs import (
     timer_factors,
 )
 from timespec.families.protocol import Evaluate, Finding, FloatArray, Inputs, Output
+from timespec.families.timernode import delay_factor, node_stray_factor, node_stray_finding
 from timespec.model import Block
 from timespec.numbers import format_quantity
 from timespec.parts.part import Design
@@ -51,7 +55,8 @@ __all__ = ["OneShot"]
 #: more current drawn from the node (the node settles lower, so it charges longer).
 #: ``t = R·C·ln((V' − v0)/(V' − vth))`` with ``V' = V − i·R`` and ``v0 = V'·ron/(R + ron)``:
 #: the ratio ``V'·R/(R + ron)/(V' − vth)`` grows with R, with vth and with i, and the
-#: timer's drift terms only scale it by a positive factor.
+#: timer's drift terms only scale it by a positive factor.  The stray adds to C and
+#: the output delay adds to the width, so the width rises with both.
 WIDTH_RISING = frozenset(
     {
         "R.tol",
@@ -64,6 +69,8 @@ WIDTH_RISING = frozenset(
         "timer.ith",
         "leak",
         "control",
+        "stray",
+        "timer.delay",
     }
 )
 #: Factors in which the width never rises: the discharge on-resistance lifts the start.
@@ -114,6 +121,9 @@ class OneShot:
         out.extend(condition_factors(block))
         out.append(supply_nominal_factor(block))
         out.extend(timer_factors(block, leakage=node_leakage(block, design)))
+        assert block.timer is not None
+        out.append(node_stray_factor(block.timer))
+        out.append(delay_factor(block.timer, block.conditions.supply.low))
         control = block.window("control")
         if control is not None:
             out.append(
@@ -145,16 +155,18 @@ class OneShot:
         """
         forced = block.window("control") is not None
 
+        zero = np.zeros(1)
+
         def evaluate(x: Inputs) -> dict[str, FloatArray]:
             r = apply_part(x, "R")
-            c = apply_part(x, "C")
+            c = apply_part(x, "C") + x.get("stray", zero)
             v = x["supply"]
             i = drain_current(x)
             if forced:
                 w = monostable.width_control(r, c, v, x["control"], x["timer.ron"], i)
             else:
                 w = monostable.width(r, c, v, x["timer.ratio"], x["timer.ron"], i)
-            return {"width": scaled_time(x, w)}
+            return {"width": scaled_time(x, w) + x.get("timer.delay", zero)}
 
         return evaluate
 
@@ -330,5 +342,6 @@ class OneShot:
                     "a smaller R with a larger C is more robust.",
                 )
             )
+        out.extend(node_stray_finding(c, timer))
         out.extend(dielectric_findings(block, c))
         return out

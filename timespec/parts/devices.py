@@ -100,6 +100,12 @@ class TimerClass:
     r_on_test_current
         Discharge current at which the saturation voltage behind ``r_on_max`` is
         specified, A.  [DS]
+    t_pd
+        Delay band ``(min, max)`` from a threshold crossing to the output edge
+        (comparator and flip-flop), s, at supplies of 5 V and above.  [Mem]
+    c_node
+        Capacitance the timer's own pins add to the timing node, band
+        ``(min, max)``, F (threshold with trigger or discharge).  [Mem]
     """
 
     name: str
@@ -118,6 +124,29 @@ class TimerClass:
     r_out_low: tuple[float, float] = (50.0, 300.0)
     i_out_max: float = 10e-3
     r_on_test_current: float = 4.5e-3
+    t_pd: tuple[float, float] = (50e-9, 300e-9)
+    c_node: tuple[float, float] = (2e-12, 10e-12)
+
+    def delay_band(self, supply_low: float) -> tuple[float, float]:
+        """Threshold-to-output delay band at the design's lowest supply, s.
+
+        Parameters
+        ----------
+        supply_low
+            The lowest supply of the design, V.
+
+        Returns
+        -------
+        tuple of float
+            :attr:`t_pd`; for the CMOS class below 5 V its top grows as
+            ``(5 V / supply_low)²`` (CMOS delay grows about as the square of the
+            drive lost at a lower supply [Mem]); the bipolar class is used from
+            4.5 V only and is taken as quoted.
+        """
+        lo, hi = self.t_pd
+        if self.name == "cmos" and 0.0 < supply_low < 5.0:
+            hi *= (5.0 / supply_low) ** 2
+        return lo, hi
 
     @property
     def r_on_held(self) -> Held:
@@ -187,6 +216,10 @@ TIMER_CLASSES: dict[str, TimerClass] = {
         r_out_high=(5.0, 20.0),  # [Mem] emitter-follower high side, a few to tens of Ω
         r_out_low=(5.0, 20.0),  # [Mem] saturated low side
         i_out_max=200e-3,  # [DS] 200 mA source/sink
+        # [Mem] output edge some 100 ns after the threshold crossing, rise/fall
+        # 100 ns typ, 300 ns max [DS]; the 50 ns floor is [Mem].
+        t_pd=(50e-9, 300e-9),
+        c_node=(2e-12, 10e-12),  # [Mem] a few pF per pin, two pins on the node
     ),
     "cmos": TimerClass(
         name="cmos",
@@ -204,6 +237,8 @@ TIMER_CLASSES: dict[str, TimerClass] = {
         r_out_high=(50.0, 300.0),  # [Mem] tens to a few hundred Ω per side (REFERENCE.md)
         r_out_low=(50.0, 300.0),  # [Mem]
         i_out_max=10e-3,  # [Mem] ±10 mA
+        t_pd=(50e-9, 400e-9),  # [Mem] a few hundred ns at 5 V, slower at 2 V
+        c_node=(2e-12, 10e-12),  # [Mem] a few pF per pin, two pins on the node
     ),
 }
 

@@ -19,6 +19,9 @@ from timespec.families.inputs import apply_part, drain_current
 from timespec.families.protocol import FloatArray, Inputs
 from timespec.physics import astable
 
+#: The node stray when the samples carry none (physics probes).
+_NO_STRAY = np.zeros(1)
+
 __all__ = ["PAIR_SEARCH", "STALL_CAUSE", "half_periods"]
 
 #: What keeps the capacitor from a threshold when the circuit stalls.
@@ -40,7 +43,7 @@ def half_periods(x: Inputs) -> tuple[FloatArray, FloatArray]:
         :func:`~timespec.physics.astable.classic_low_time`; ``inf`` where a
         threshold is never reached.
     """
-    c = apply_part(x, "C")
+    c = apply_part(x, "C") + x.get("stray", _NO_STRAY)
     v = x["supply"]
     k = x["timer.ratio"]
     i = drain_current(x)

@@ -32,6 +32,9 @@ from timespec.parts.diodes import SMALL_SIGNAL, DiodeClass
 from timespec.parts.part import Design
 from timespec.physics import astable
 
+#: The node stray when the samples carry none (physics probes).
+_NO_STRAY = np.zeros(1)
+
 __all__ = [
     "DIODE_DROP_BAND",
     "DIODE_TC_BAND",
@@ -174,7 +177,7 @@ def half_periods(x: Inputs) -> tuple[FloatArray, FloatArray]:
         :func:`~timespec.physics.astable.classic_low_time`.  ``inf`` where a
         threshold is never reached.
     """
-    c = apply_part(x, "C")
+    c = apply_part(x, "C") + x.get("stray", _NO_STRAY)
     v = x["supply"]
     k = x["timer.ratio"]
     i = drain_current(x)

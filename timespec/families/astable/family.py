@@ -36,6 +36,7 @@ from timespec.families.inputs import (
     timer_factors,
 )
 from timespec.families.protocol import Evaluate, Finding, FloatArray, Inputs, Output
+from timespec.families.timernode import node_stray_factor, node_stray_finding
 from timespec.model import Block
 from timespec.numbers import format_quantity
 from timespec.parts.part import Design
@@ -134,6 +135,7 @@ class Astable:
         out.extend(condition_factors(block))
         out.append(supply_nominal_factor(block))
         timer = timer_factors(block, leakage=node_leakage(block, design))
+        timer.append(node_stray_factor(block.timer))
         if design.variant == "feedback":
             timer = [f for f in timer if f.name not in feedback.UNUSED_TIMER_FACTORS]
             out.extend(timer)
@@ -289,5 +291,6 @@ class Astable:
                     "shifts the timing. Prefer a larger resistor with a smaller capacitor.",
                 )
             )
+        out.extend(node_stray_finding(design.part("C"), timer))
         out.extend(dielectric_findings(block, design.part("C")))
         return out

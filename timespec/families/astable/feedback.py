@@ -29,6 +29,9 @@ from timespec.parts.part import Design
 from timespec.parts.rkm import format_rkm
 from timespec.physics import astable
 
+#: The node stray when the samples carry none (physics probes).
+_NO_STRAY = np.zeros(1)
+
 __all__ = [
     "FEEDBACK_LOW_MAX",
     "RAIL_OUTPUT_SHARE",
@@ -189,7 +192,7 @@ def half_periods(x: Inputs) -> tuple[FloatArray, FloatArray]:
         threshold is never reached.  Without the ``output.roh``/``output.rol``
         samples the output resistance is taken as zero.
     """
-    c = apply_part(x, "C")
+    c = apply_part(x, "C") + x.get("stray", _NO_STRAY)
     v = x["supply"]
     k = x["timer.ratio"]
     i = drain_current(x)

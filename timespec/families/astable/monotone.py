@@ -70,7 +70,11 @@ __all__ = ["ALWAYS", "GUARDED", "PAYS", "RATIO_GUARDED", "declarations", "declar
 
 _Declared = Mapping[str, tuple[tuple[str, ...], tuple[str, ...]]]
 _PARTS_UP = ("tol", "age", "drift", "bias")
-_C_ONLY = {f"C.{p}": (("high", "low", "period"), ("frequency",)) for p in _PARTS_UP}
+# The node's stray (timer pins and board) adds to C, so it moves every output as C does.
+_C_ONLY = {
+    name: (("high", "low", "period"), ("frequency",))
+    for name in (*(f"C.{p}" for p in _PARTS_UP), "stray")
+}
 
 #: Declarations that hold everywhere the timer scale is positive: ``factor →
 #: (rising outputs, falling outputs)``, per variant.
