@@ -37,6 +37,7 @@ from timespec.analysis import (
     worst_case_many,
 )
 from timespec.design.result import BlockResult, Candidate, OutputResult, Result
+from timespec.errors import SpecValueError
 from timespec.families import family
 from timespec.families.goals import window_score
 from timespec.families.protocol import Family
@@ -234,7 +235,8 @@ def _preselect(
     the same layout in one vectorised call (designs of one family share their
     sensitivity pattern, so the same corners are extreme); the ``keep`` best by
     the usual ranking then get the full, exhaustive corner search that the
-    report relies on.  The first design's exhaustive result goes into ``known``.
+    report relies on, with every design of another layout (no estimate from
+    these corners).  The first design's exhaustive result goes into ``known``.
     """
     if len(designs) <= keep:
         return designs
@@ -245,11 +247,10 @@ def _preselect(
     corners = [e.low_at for e in extremes.values()] + [e.high_at for e in extremes.values()]
     sig = (first.variant, _signature(facs))
     same = [d for d in designs if (d.variant, _signature(facs_of[d])) == sig]
-    quick: list[tuple[RankKey, int]] = [
-        ((0, 0.0, 0, 0.0, 0, 0, 0.0), i)  # a different layout: always kept
-        for i, d in enumerate(designs)
-        if (d.variant, _signature(facs_of[d])) != sig
-    ]
+    # a different layout gets no quick estimate from these corners: always kept, beside
+    # (not instead of) the best of this layout
+    others = [d for d in designs if (d.variant, _signature(facs_of[d])) != sig]
+    quick: list[tuple[RankKey, int]] = []
     n = len(corners) + 1
     x = {k: np.repeat(v, n * len(same)) for k, v in nominal_inputs(facs).items()}
     for j, corner in enumerate(corners, start=1):
@@ -275,7 +276,7 @@ def _preselect(
         cand = _candidate(block, d, fam, facs_of[d], approx, rules=False)
         quick.append((rank_key(cand), index[id(d)]))
     quick.sort()
-    return [designs[i] for _, i in quick[:keep]]
+    return [designs[i] for _, i in quick[:keep]] + others
 
 
 def _signature(factors: list[Factor]) -> tuple[object, ...]:
@@ -389,6 +390,8 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
             f"none of the {len(designs)} candidate designs from the allowed parts meets the "
             "requirement at worst case; the closest is shown"
         )
+    for cand in (best, *alternatives):
+        _check_finite(block, cand, verdict == "meets" and cand is best)
     factors: tuple[Factor, ...] = tuple(facs_of.get(best.design) or fam.factors(block, best.design))
     return BlockResult(
         block=block,
@@ -399,6 +402,44 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
         factors=factors,
         notes=tuple(notes),
         extra={"candidates": len(designs), "analysed": len(chosen)},
+    )
+
+
+def _check_finite(block: Block, cand: Candidate, meets: bool) -> None:
+    """Refuse a verdict built on a NaN, or a MEETS built on an infinite value.
+
+    An infinite worst-case end is a real answer when a threshold is never
+    reached (the physics returns ``inf``), and it fails its requirement; a NaN
+    is never an answer, and a design that meets with an infinite output or
+    margin has met nothing.
+    """
+    for out in cand.outputs:
+        values = (out.nominal, out.low, out.high)
+        bad = any(math.isnan(v) for v in values) or (
+            meets and not all(math.isfinite(v) for v in values)
+        )
+        if bad:
+            raise _located(
+                block,
+                f"block '{block.name}': the computed {out.label or out.name} is not a finite "
+                f"number (nominal {out.nominal:g}, worst case {out.low:g} to {out.high:g}); "
+                "no verdict is given",
+                "some value of the spec drives the model outside floating-point range: "
+                "check its magnitudes and units",
+            )
+
+
+def _located(block: Block, message: str, hint: str) -> SpecValueError:
+    pos = block.pos
+    if pos is None:
+        return SpecValueError(message, hint=hint)
+    return SpecValueError(
+        message,
+        path=pos.path,
+        line=pos.line,
+        column=pos.column,
+        source_line=pos.source_line,
+        hint=hint,
     )
 
 
