@@ -238,10 +238,9 @@ class _Builder(Transformer[Token, Any]):
         return Tolerance(q, q, self._tpos(children[0]))
 
     def tol_asymmetric(self, children: list[Any]) -> Tolerance:
-        p = children[0].pos
-        return Tolerance(
-            children[1], children[0], Pos(p.path, p.line, max(1, p.column - 1), p.source_line)
-        )
+        # the plus part is positioned at its "+" already
+        plus: Quantity = children[0]
+        return Tolerance(children[1], plus, plus.pos)
 
     # -- quantities ----------------------------------------------------------
     def _quantity(self, number: Token, unit: Token | None, sign: float, start: Token) -> Quantity:
@@ -313,13 +312,57 @@ class _Builder(Transformer[Token, Any]):
             Pos(pos.path, pos.line, max(1, pos.column - 1), pos.source_line),
         )
 
+    def positive(self, children: list[Token]) -> Quantity:
+        unit = children[1] if len(children) > 1 else None
+        return self._signed_plus(self._quantity(children[0], unit, 1.0, children[0]))
+
+    def minutes(self, children: list[Token]) -> Quantity:
+        return self._quantity(children[0], _minute_token(children[0]), 1.0, children[0])
+
+    def negative_minutes(self, children: list[Token]) -> Quantity:
+        return self.negative([children[0], _minute_token(children[0])])
+
+    def positive_minutes(self, children: list[Token]) -> Quantity:
+        return self.positive([children[0], _minute_token(children[0])])
+
+    def positive_rkm(self, children: list[Token]) -> Quantity:
+        return self._signed_plus(self.rkm(children))
+
+    @staticmethod
+    def _signed_plus(q: Quantity) -> Quantity:
+        """A quantity written with a ``+``: the same value, positioned at the sign."""
+        pos = q.pos
+        return Quantity(
+            q.value,
+            q.kind,
+            q.text,
+            Pos(pos.path, pos.line, max(1, pos.column - 1), pos.source_line),
+        )
+
     def rkm(self, children: list[Token]) -> Quantity:
         tok = children[0]
+        code = _OHM_SUFFIX.sub("", str(tok))
         try:
-            value, dimension = parse_rkm(str(tok))
+            value, dimension = parse_rkm(code)
         except ValueError as exc:
             raise _positioned(SpecUnitError, str(exc), self._tpos(tok), None) from None
-        return Quantity(value, dimension, str(tok), self._tpos(tok))
+        if code != str(tok) and dimension != "resistance":
+            raise _positioned(
+                SpecUnitError,
+                f"{str(tok)!r} puts the ohm sign on a {dimension} code",
+                self._tpos(tok),
+                f"write the code alone ({code}) or give the unit of a {dimension}",
+            )
+        return Quantity(value, dimension, code, self._tpos(tok))
+
+
+#: The ohm sign (or word) that may be glued to an RKM code: ``4k7Ω``, ``100kohm``.
+_OHM_SUFFIX = re.compile(r"(Ω|\u2126|ohms?)$")
+
+
+def _minute_token(number: Token) -> Token:
+    """The unit token of ``2 min``, which the grammar reads as a keyword."""
+    return Token.new_borrow_pos("UNIT", "min", number)
 
 
 _LEADING_NUMBER = re.compile(r"-?(\d+(\.\d*)?|\.\d+)([eE][+\-]?\d+)?\s*")

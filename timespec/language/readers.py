@@ -31,6 +31,7 @@ from timespec.language.arguments import (
     single_term,
     window_of,
 )
+from timespec.language.bounds import check_bounds
 from timespec.language.parser import Statement
 from timespec.language.values import Bound, Fraction, Quantity, Range, Text, Tolerance, Word
 from timespec.model import Requirement, Window
@@ -122,6 +123,8 @@ def read_ambient(stmt: Statement) -> Reading:
     """
     term = single_term(stmt, "a temperature range, e.g. -10 degC to 60 degC")
     win = window_of(term, ["temperature"], "ambient", exact_ok=True)
+    if not isinstance(term, Bound):
+        check_bounds(stmt, "defaults")  # an infinite end is not a missing one
     if math.isinf(win.low) or math.isinf(win.high):
         raise error_at(SpecValueError, "the ambient range needs both ends", term.pos)
     if win.low < -273.15:

@@ -8,7 +8,9 @@ values, and reads one statement.
 
 from __future__ import annotations
 
-from timespec.language.arguments import Reader, Reading
+from timespec.errors import SpecError, SpecValueError
+from timespec.language.arguments import Reader, Reading, error_at, example_hint
+from timespec.language.bounds import check_bounds
 from timespec.language.parser import Statement
 from timespec.language.policies import read_gate, read_policy, read_timer, read_use
 from timespec.language.readers import (
@@ -103,7 +105,23 @@ def read_statement(stmt: Statement, kind: str) -> Reading:
     Raises
     ------
     SpecError
-        When its arguments are wrong.
+        When its arguments are wrong: the reader's own checks first, then
+        every number against its statement's range
+        (:mod:`timespec.language.bounds`); an arithmetic error of a reader
+        becomes an error at the offending number or at the statement.
     """
     reader = _BY_KIND.get((kind, stmt.keyword), READERS[stmt.keyword])
-    return reader(stmt)
+    try:
+        reading = reader(stmt)
+    except SpecError:
+        raise
+    except (ValueError, ArithmeticError) as exc:
+        check_bounds(stmt, kind)  # a located error at the number, when one is out of range
+        raise error_at(
+            SpecValueError,
+            f"'{stmt.keyword}' cannot be read: {exc}",
+            stmt.pos,
+            example_hint(stmt.keyword),
+        ) from None
+    check_bounds(stmt, kind)
+    return reading
