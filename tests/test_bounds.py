@@ -86,7 +86,7 @@ def test_crystal_frequency_message_names_the_range() -> None:
     assert err.line == 2
     assert err.column == 13
     assert err.hint == (
-        "'frequency' in a crystal block takes 1000 to 2e+08 Hz "
+        "'frequency' in a crystal block takes 1 kHz to 200 MHz "
         "(quartz crystals in a Pierce loop run from 1 kHz to 200 MHz)"
     )
 

@@ -33,6 +33,7 @@ from timespec.language.values import (
     Tolerance,
     Toleranced,
 )
+from timespec.numbers import format_quantity
 
 __all__ = [
     "BLOCK_BOUNDS",
@@ -222,12 +223,45 @@ def format_limit(limit: Limit) -> str:
     Returns
     -------
     str
-        For example ``"1000 to 2e+08 Hz"``.
+        For example ``"1 kHz to 200 MHz"``, ``"0 to 10000 ppm/K"``.
     """
+    kind = _SI_KINDS.get(limit.unit) if limit.scale == 1.0 else None
+    if kind is not None:
+        return f"{_si(limit.low, kind)} to {_si(limit.high, kind)}"
     low = _number(round(limit.low / limit.scale, 9))
     high = _number(round(limit.high / limit.scale, 9))
     unit = f" {limit.unit}" if limit.unit else ""
     return f"{low} to {high}{unit}"
+
+
+#: Units whose ends read better with an SI prefix (``200 MHz``, ``1 mA``, ``1 GΩ``).
+_SI_KINDS: dict[str, str] = {
+    "Hz": "frequency",
+    "A": "current",
+    "V": "voltage",
+    "F": "capacitance",
+    "Ω": "resistance",
+    "W": "power",
+    "s": "time",
+}
+
+
+def _si(x: float, kind: str) -> str:
+    """One end with an SI prefix; times of a second and more stay in seconds."""
+    if x == 0.0 or (kind == "time" and abs(x) >= 1.0):
+        return f"{_number(x)} {_SI_UNIT[kind]}"
+    return format_quantity(x, kind)
+
+
+_SI_UNIT = {
+    "frequency": "Hz",
+    "current": "A",
+    "voltage": "V",
+    "capacitance": "F",
+    "resistance": "Ω",
+    "power": "W",
+    "time": "s",
+}
 
 
 def quantities(term: Term) -> Iterator[tuple[Quantity, bool]]:
