@@ -217,3 +217,21 @@ def test_solved_feedback_design_respects_output_limit() -> None:
     i_max = max(v * (1 - k_lo / 2), k_hi * v) / (r_min + 50.0)
     fired = "output-current-limit" in {f.code for f in res.best.findings}
     assert fired == (i_max > 10e-3)
+
+
+def test_duty_range_covers_unequal_output_resistances_at_the_smallest_r() -> None:
+    # first-order RC law (circuit-theory handbook): tH = (R + R_oh)·C·ln((V − kV/2)/(V − kV)),
+    # tL = (R + R_ol)·C·ln(kV/(kV/2)) with rail-to-rail levels; at the policy's smallest R
+    # with R_oh at the top of its band and R_ol at the bottom the duty rises above 50 %.
+    from timespec.families.astable.feedback import feedback_duty_range
+
+    b = block()
+    t = b.timer
+    assert t is not None
+    r = b.resistors.low
+    k = 2.0 / 3.0
+    th = (r + t.r_out_high[1]) * math.log((1 - k / 2) / (1 - k))
+    tl = (r + t.r_out_low[0]) * math.log(2.0)
+    skewed = th / (th + tl)
+    lo, hi = feedback_duty_range(b)
+    assert lo <= 1 - skewed + 1e-12 and skewed - 1e-12 <= hi

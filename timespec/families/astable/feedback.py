@@ -92,8 +92,10 @@ def feedback_duty_range(block: Block) -> tuple[float, float]:
     -------
     tuple of float
         ``(low, high)`` over the threshold-ratio band, output drop ``0…output_drop``,
-        output low ``0…FEEDBACK_LOW_MAX`` and the supply window; ``(nan, nan)``
-        when the output never reaches the upper threshold anywhere.
+        output low ``0…FEEDBACK_LOW_MAX``, the supply window and the output
+        resistances (``R + R_oh`` charges, ``R + R_ol`` discharges: unequal sides
+        skew the duty most at the policy's smallest R); ``(nan, nan)`` when the
+        output never reaches the upper threshold anywhere.
 
     Notes
     -----
@@ -102,15 +104,23 @@ def feedback_duty_range(block: Block) -> tuple[float, float]:
     """
     t = block.timer
     assert t is not None
+    r = max(block.resistors.low, 1e-3)
+    (oh_lo, oh_hi), (ol_lo, ol_hi) = t.r_out_high, t.r_out_low
+    # (R + R_oh, R + R_ol) at the smallest allowed R, both ways round, and R ≫ R_out
+    series = ((r + oh_lo, r + ol_hi), (r + oh_hi, r + ol_lo), (1.0, 1.0))
     grid = itertools.product(
         t.ratio_band,
         (0.0, t.output_drop),
         (0.0, FEEDBACK_LOW_MAX),
         (block.conditions.supply.low, block.conditions.supply.high),
+        series,
     )
-    k, drop, vl, v = (np.array(col, dtype=np.float64) for col in zip(*grid, strict=True))
-    th = astable.feedback_high_time(1.0, 1.0, v - drop, v, k)
-    tl = astable.feedback_low_time(1.0, 1.0, vl, v, k)
+    points = [(kk, dd, ll, vv, rh, rl) for kk, dd, ll, vv, (rh, rl) in grid]
+    k, drop, vl, v, r_h, r_l = (
+        np.array(col, dtype=np.float64) for col in zip(*points, strict=True)
+    )
+    th = astable.feedback_high_time(r_h, 1.0, v - drop, v, k)
+    tl = astable.feedback_low_time(r_l, 1.0, vl, v, k)
     d = astable.duty(th, tl)
     ok = np.isfinite(th) & np.isfinite(tl)
     if not ok.any():
