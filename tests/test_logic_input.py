@@ -64,3 +64,30 @@ def test_small_capacitor_beside_the_stray_is_warned() -> None:
     res = _solve(text)
     assert res.best is not None
     assert "stray-comparable" in {f.code for f in res.best.findings}
+
+
+_DELAY = """defaults:
+  supply 5 V ±5%
+  gate metalgate
+delay por:
+  delay 15 ms to 60 ms
+  threshold 0.4 to 0.6 of supply
+"""
+
+
+def test_a_delay_block_may_name_the_gate_that_watches_it() -> None:
+    # regression: 'gate' was refused in a delay block although the family models the
+    # gate's leakage, pin capacitance and propagation delay (class datasheets [DS])
+    spec = timespec.parse(_DELAY + "  gate highspeed\n", "t.tspec")
+    block = spec.blocks[0]
+    assert block.gate is not None and block.gate.name == "highspeed"
+    res = solve_block(block)
+    names = {f.name for f in res.factors}
+    assert "gate.delay" in names
+
+
+def test_a_default_gate_does_not_move_a_delay_block() -> None:
+    # the defaults' gate is for the relaxation oscillators; a delay block's input is a
+    # generic CMOS input unless the block says otherwise
+    block = timespec.parse(_DELAY, "t.tspec").blocks[0]
+    assert block.gate is None

@@ -403,7 +403,11 @@ def _finish(sec: _Section, defaults: _Section) -> Block:
                 "change the supply or the timer class ('timer cmos' runs from 2 V)",
             )
     gate = None
-    if sec.kind == "relaxation":
+    # A relaxation oscillator is a gate (defaults apply); a delay block names the gate
+    # that watches its node only by its own statement (a default meant for the
+    # oscillators must not move a delay onto a gate class it does not use).
+    own_gate = sec.kind == "delay" and "gate" in sec.readings
+    if sec.kind == "relaxation" or own_gate:
         gate_item = _get(sec, defaults, "gate")
         gate = GATE_CLASSES[gate_item[0] if gate_item else DEFAULT_GATE]
         if not (gate.supply_min <= supply.low and supply.high <= gate.supply_max):

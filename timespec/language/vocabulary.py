@@ -138,9 +138,11 @@ _TABLE: list[Keyword] = [
     _kw("start", {"delay"}, "start 0.2 V", "capacitor voltage when the delay starts"),
     _kw(
         "gate",
-        {"defaults", "relaxation"},
+        {"defaults", "relaxation", "delay"},
         "gate highspeed",
-        "Schmitt-inverter class: " + ", ".join(GATE_CLASSES),
+        "Schmitt-inverter class: "
+        + ", ".join(GATE_CLASSES)
+        + " (in a delay block: the input that watches the node; only stated there)",
     ),
     _kw(
         "rising",
