@@ -59,6 +59,7 @@ def test_classic_nominal_relations() -> None:
     x["timer.ron"] = np.array([0.0])
     x["timer.ith"] = np.array([0.0])
     x["stray"] = np.array([0.0])  # the ideal law has no node stray
+    x["timer.delay"] = np.array([0.0])  # nor an output delay
     out = FAM.evaluate(b, "classic")(x)
     # common practice: f = 1/(ln 2·(RA + 2RB)·C) ≈ 1.443/((RA + 2RB)·C)
     assert out["frequency"][0] == pytest.approx(1.0 / (math.log(2) * (ra + 2 * rb) * c), rel=1e-9)
@@ -261,7 +262,8 @@ def test_solver_completes_for_each_circuit() -> None:
 )
 def test_times_scale_with_capacitance(k: float, ra: float, rb: float, variant: str) -> None:
     # first-order RC law (any circuit-theory handbook): every time is proportional to the
-    # node's whole capacitance (C and its stray), so the duty cycle does not depend on it
+    # node's whole capacitance (C and its stray) with the output delay scaled alike (a
+    # change of time unit), so the duty cycle does not depend on it
     b = block("  frequency 2 kHz ±12%\n")
     design = FAM._design(b, variant, {"RA": ra, "RB": rb, "C": 10e-9})
     x = nominal_inputs(FAM.factors(b, design))
@@ -269,6 +271,7 @@ def test_times_scale_with_capacitance(k: float, ra: float, rb: float, variant: s
     one = model(x)
     x["C.value"] = x["C.value"] * k
     x["stray"] = x["stray"] * k
+    x["timer.delay"] = x["timer.delay"] * k  # the delay is a time too: scale it with RC
     scaled = model(x)
     assert scaled["period"][0] == pytest.approx(k * one["period"][0], rel=1e-9)
     assert scaled["duty"][0] == pytest.approx(one["duty"][0], rel=1e-9)
@@ -330,18 +333,23 @@ def _check_declarations_exact(
     import dataclasses
 
     circuit = f"  circuit {variant}\n  timer {timer}\n"
-    b = block("  frequency 2 kHz ±12%\n" + circuit, policy)
-    design = FAM._design(b, variant, values)
-    plain = [dataclasses.replace(f, rising=(), falling=()) for f in FAM.factors(b, design)]
-    # every proven declaration, also those the family drops when they would not pay
-    facs = declarations(plain, variant)
-    assert any(f.rising or f.falling for f in facs)
-    model = FAM.evaluate(b, variant)
-    fast = worst_case(facs, model)
-    full = worst_case(plain, model)
-    for name, e in full.items():
-        got = fast[name]
-        assert _same(got.low, e.low) and _same(got.high, e.high), (name, got, e)
+    b0 = block("  frequency 2 kHz ±12%\n" + circuit, policy)
+    assert b0.timer is not None
+    # with the class's output delay (C, stray and delay declared) and without it (every
+    # proof of the delay-free model)
+    undelayed = dataclasses.replace(b0, timer=dataclasses.replace(b0.timer, t_pd=(0.0, 0.0)))
+    for b in (b0, undelayed):
+        design = FAM._design(b, variant, values)
+        plain = [dataclasses.replace(f, rising=(), falling=()) for f in FAM.factors(b, design)]
+        # every proven declaration, also those the family drops when they would not pay
+        facs = declarations(plain, variant)
+        assert any(f.rising or f.falling for f in facs)
+        model = FAM.evaluate(b, variant)
+        fast = worst_case(facs, model)
+        full = worst_case(plain, model)
+        for name, e in full.items():
+            got = fast[name]
+            assert _same(got.low, e.low) and _same(got.high, e.high), (name, got, e)
 
 
 def _capacitor(policy: str, share: float) -> float:
@@ -400,7 +408,7 @@ def test_discharge_current_past_the_on_resistance_test_current_is_reported() -> 
     res = solve_block(timespec.parse(text).blocks[0])
     assert res.best is not None
     (f,) = [x for x in res.best.findings if x.code == "discharge-on-resistance-range"]
-    k_hi = 1.0 - 3.0 ** -1.03  # bipolar class: ±3 % initial error as a threshold ratio
+    k_hi = 1.0 - 3.0**-1.03  # bipolar class: ±3 % initial error as a threshold ratio
     i_peak = 5.25 / 990.0 + k_hi * 5.25 / (2200 * 0.99)
     assert "4.5 mA" in f.message
     assert f"{i_peak / 4.5e-3:.3g}×" in f.message

@@ -106,6 +106,7 @@ def test_half_periods_match_node_ode(r: float, roh: float, rol: float, i_drain: 
             "output.rol": np.array([rol]),
         }
     )
+    x["timer.delay"] = np.zeros(1)  # the output delay has its own test (test_timer_delay)
     th, tl = feedback.half_periods(x)
     # the node's stray (timer pins and board) adds to C
     c_node = c + float(x["stray"][0])
@@ -183,8 +184,16 @@ def test_worst_case_widens_with_output_resistance() -> None:
 def test_declared_output_resistance_exact(r: float, c: float, supply: float) -> None:
     # The declared search must give EXACTLY the extremes of the full corner search
     # (brute-force check of the monotonicity proofs), with R small next to R_out.
+    # The output-resistance proofs are those of the delay-free model: with the timer's
+    # output delay the halves couple and the family declares only C, stray and delay.
     policy = POLICY.replace("12 V", f"{supply:g} V")
     b = block("  leakage 20 uA max\n", policy) if supply == 12.0 else block("", policy)
+    delayed = FAM.factors(b, FAM._design(b, "feedback", {"R": r, "C": c}))
+    undelayed = declarations(
+        [dataclasses.replace(f, rising=(), falling=()) for f in delayed], "feedback"
+    )
+    assert not any(f.name == "output.roh" and f.rising for f in undelayed)
+    b = with_timer(b, t_pd=(0.0, 0.0))
     design = FAM._design(b, "feedback", {"R": r, "C": c})
     plain = [dataclasses.replace(f, rising=(), falling=()) for f in FAM.factors(b, design)]
     facs = declarations(plain, "feedback")

@@ -26,6 +26,7 @@ __all__ = [
     "classic_high_time",
     "classic_low_time",
     "diode_charge_currents",
+    "diode_equation_charge",
     "diode_equation_high_time",
     "diode_forward_voltage",
     "diode_high_time",
@@ -794,6 +795,60 @@ def diode_equation_high_time(
     any circuit-theory handbook; the steering-diode circuit is common practice.
     """
     lo, hi = _levels(v_supply, threshold_ratio)
+    return diode_equation_charge(ra, c, v_supply, lo, hi, is_t, n_vt, i_drain, rb)
+
+
+@quiet
+def diode_equation_charge(
+    ra: ArrayLike,
+    c: ArrayLike,
+    v_supply: ArrayLike,
+    v_from: ArrayLike,
+    v_to: ArrayLike,
+    is_t: ArrayLike,
+    n_vt: ArrayLike,
+    i_drain: ArrayLike = 0.0,
+    rb: ArrayLike = np.inf,
+) -> FloatArray:
+    """Time the steering-diode astable's charge takes between two capacitor voltages.
+
+    Parameters
+    ----------
+    ra : ArrayLike
+        Resistor from the supply to the discharge pin, ohm.
+    c : ArrayLike
+        Timing capacitor, F.
+    v_supply : ArrayLike
+        Supply voltage, V.
+    v_from : ArrayLike
+        Capacitor voltage at the start of the interval, V.
+    v_to : ArrayLike
+        Capacitor voltage at its end, V (``v_from <= v_to``).
+    is_t : ArrayLike
+        Diode saturation current at the junction temperature, A.
+    n_vt : ArrayLike
+        Emission coefficient times the thermal voltage, V.
+    i_drain : ArrayLike, optional
+        Constant current leaving the capacitor node, A.  Default 0.
+    rb : ArrayLike, optional
+        Discharge resistor in parallel with the diode, ohm.  Default ``inf``.
+
+    Returns
+    -------
+    FloatArray
+        Time, s (``inf`` where the charge current at ``v_to`` does not beat the drain).
+
+    Notes
+    -----
+    The integral of :func:`diode_equation_high_time` between any two voltages.
+
+    References
+    ----------
+    Diode equation (Shockley), first-order capacitor charge and Kirchhoff's laws,
+    any circuit-theory handbook.
+    """
+    lo = as_float_array(v_from)
+    hi = as_float_array(v_to)
     v = as_float_array(v_supply)
     r_a = as_float_array(ra)
     g_b = 1.0 / as_float_array(rb)

@@ -17,7 +17,7 @@ from timespec.families.astable.discharge import PairSearch
 from timespec.families.astable.nominal import NominalRun, safe_ratio
 from timespec.families.inputs import apply_part, drain_current
 from timespec.families.protocol import FloatArray, Inputs
-from timespec.physics import astable
+from timespec.physics import timerdelay
 
 #: The node stray when the samples carry none (physics probes).
 _NO_STRAY = np.zeros(1)
@@ -39,9 +39,10 @@ def half_periods(x: Inputs) -> tuple[FloatArray, FloatArray]:
     Returns
     -------
     tuple of FloatArray
-        ``(tH, tL)``, s: :func:`~timespec.physics.astable.classic_high_time` and
-        :func:`~timespec.physics.astable.classic_low_time`; ``inf`` where a
-        threshold is never reached.
+        ``(tH, tL)``, s: :func:`~timespec.physics.timerdelay.classic_delayed_times`
+        (the laws of :func:`~timespec.physics.astable.classic_high_time` and
+        :func:`~timespec.physics.astable.classic_low_time` with the timer's output
+        delay ``timer.delay``); ``inf`` where a threshold is never reached.
     """
     c = apply_part(x, "C") + x.get("stray", _NO_STRAY)
     v = x["supply"]
@@ -50,9 +51,8 @@ def half_periods(x: Inputs) -> tuple[FloatArray, FloatArray]:
     ra = apply_part(x, "RA")
     rb = apply_part(x, "RB")
     ron = x["timer.ron"]
-    th = astable.classic_high_time(ra, rb, c, v, k, i)
-    tl = astable.classic_low_time(ra, rb, c, v, k, ron, i)
-    return th, tl
+    td = x.get("timer.delay", _NO_STRAY)
+    return timerdelay.classic_delayed_times(ra, rb, c, v, k, ron, i, td)
 
 
 def _high_gain(run: NominalRun, probe: dict[str, FloatArray]) -> float:

@@ -30,7 +30,7 @@ from timespec.families.protocol import Finding, FloatArray, Inputs
 from timespec.model import Block
 from timespec.parts.diodes import SMALL_SIGNAL, DiodeClass
 from timespec.parts.part import Design
-from timespec.physics import astable
+from timespec.physics import astable, timerdelay
 
 #: The node stray when the samples carry none (physics probes).
 _NO_STRAY = np.zeros(1)
@@ -175,7 +175,8 @@ def half_periods(x: Inputs) -> tuple[FloatArray, FloatArray]:
         parallel and the drain included); with a stated drop, ``V25 + tc·(T − 25)``
         into :func:`~timespec.physics.astable.diode_high_time`.  Low time:
         :func:`~timespec.physics.astable.classic_low_time`.  ``inf`` where a
-        threshold is never reached.
+        threshold is never reached.  Both with the timer's output delay
+        ``timer.delay`` (:mod:`timespec.physics.timerdelay`).
     """
     c = apply_part(x, "C") + x.get("stray", _NO_STRAY)
     v = x["supply"]
@@ -184,14 +185,12 @@ def half_periods(x: Inputs) -> tuple[FloatArray, FloatArray]:
     ra = apply_part(x, "RA")
     rb = apply_part(x, "RB")
     ron = x["timer.ron"]
+    td = x.get("timer.delay", _NO_STRAY)
     if "diode.is" in x:
         is_t, n_vt = _diode_at(x["diode.is"], x["diode.n"], x["temp"])
-        th = astable.diode_equation_high_time(ra, c, v, k, is_t, n_vt, i, rb)
-    else:
-        vd = astable.diode_forward_voltage(x["diode.v25"], x["diode.tc"], x["temp"])
-        th = astable.diode_high_time(ra, c, v, k, vd, i, rb)
-    tl = astable.classic_low_time(ra, rb, c, v, k, ron, i)
-    return th, tl
+        return timerdelay.diode_equation_delayed_times(ra, rb, c, v, k, is_t, n_vt, ron, i, td)
+    vd = astable.diode_forward_voltage(x["diode.v25"], x["diode.tc"], x["temp"])
+    return timerdelay.diode_delayed_times(ra, rb, c, v, k, vd, ron, i, td)
 
 
 def _diode_at(

@@ -36,7 +36,7 @@ from timespec.families.inputs import (
     timer_factors,
 )
 from timespec.families.protocol import Evaluate, Finding, FloatArray, Inputs, Output
-from timespec.families.timernode import node_stray_factor, node_stray_finding
+from timespec.families.timernode import delay_factor, node_stray_factor, node_stray_finding
 from timespec.model import Block
 from timespec.numbers import format_quantity
 from timespec.parts.part import Design
@@ -136,6 +136,7 @@ class Astable:
         out.append(supply_nominal_factor(block))
         timer = timer_factors(block, leakage=node_leakage(block, design))
         timer.append(node_stray_factor(block.timer))
+        timer.append(delay_factor(block.timer, block.conditions.supply.low))
         if design.variant == "feedback":
             timer = [f for f in timer if f.name not in feedback.UNUSED_TIMER_FACTORS]
             out.extend(timer)

@@ -27,7 +27,7 @@ from timespec.families.protocol import Finding, FloatArray, Inputs
 from timespec.model import Block
 from timespec.parts.part import Design
 from timespec.parts.rkm import format_rkm
-from timespec.physics import astable
+from timespec.physics import astable, timerdelay
 
 #: The node stray when the samples carry none (physics probes).
 _NO_STRAY = np.zeros(1)
@@ -210,9 +210,10 @@ def half_periods(x: Inputs) -> tuple[FloatArray, FloatArray]:
     zero = np.zeros(1)
     r_h = r + x.get("output.roh", zero)
     r_l = r + x.get("output.rol", zero)
-    th = astable.feedback_high_time(r_h, c, v - x["output.drop"], v, k, i)
-    tl = astable.feedback_low_time(r_l, c, x["output.low"], v, k, i)
-    return th, tl
+    td = x.get("timer.delay", zero)
+    return timerdelay.feedback_delayed_times(
+        r_h, r_l, c, v - x["output.drop"], x["output.low"], v, k, i, td
+    )
 
 
 def resistor_options(

@@ -17,7 +17,15 @@ from collections.abc import Mapping
 from timespec.analysis import Factor, is_varying
 from timespec.families.inputs import REFERENCE_C
 
-__all__ = ["ALWAYS", "GUARDED", "PAYS", "RATIO_GUARDED", "declarations", "declared"]
+__all__ = [
+    "ALWAYS",
+    "DELAY_SAFE",
+    "GUARDED",
+    "PAYS",
+    "RATIO_GUARDED",
+    "declarations",
+    "declared",
+]
 
 # Notation: effective parts Ra, Rb, R, C (each a positive product of its value and
 # (1 + tol)(1 + age)(1 + drift), and C also (1 + bias), so rising in those factors; the ``.tc``
@@ -71,10 +79,20 @@ __all__ = ["ALWAYS", "GUARDED", "PAYS", "RATIO_GUARDED", "declarations", "declar
 _Declared = Mapping[str, tuple[tuple[str, ...], tuple[str, ...]]]
 _PARTS_UP = ("tol", "age", "drift", "bias")
 # The node's stray (timer pins and board) adds to C, so it moves every output as C does.
+# The timer's output delay t_pd lengthens both halves (tH = t_pd + the charge from the
+# undershoot below kV/2, which itself grows with t_pd; tL likewise).  With a delay the
+# C proof still holds: tH = t_pd + C·h(t_pd/C) with h rising and concave (the
+# undershoot's charge, ln of a concave rising function, or the diode equation's integral
+# of a current that falls with v), so dtH/dC = h(u) − u·h'(u) ≥ h(0) > 0.
 _C_ONLY = {
     name: (("high", "low", "period"), ("frequency",))
-    for name in (*(f"C.{p}" for p in _PARTS_UP), "stray")
+    for name in (*(f"C.{p}" for p in _PARTS_UP), "stray", "timer.delay")
 }
+#: With a delay the turning voltages couple the halves (the overshoot past kV
+#: depends on the charge resistors, the undershoot on the discharge path), which
+#: breaks the resistor, threshold, drain, diode and output proofs below; only these
+#: stay declared then.
+DELAY_SAFE = frozenset(_C_ONLY)
 
 #: Declarations that hold everywhere the timer scale is positive: ``factor →
 #: (rising outputs, falling outputs)``, per variant.
@@ -225,8 +243,12 @@ RATIO_GUARDED: Mapping[str, _Declared] = {
 }
 
 
-def _entry(name: str, variant: str, level: int) -> tuple[tuple[str, ...], tuple[str, ...]] | None:
+def _entry(
+    name: str, variant: str, level: int, delayed: bool = False
+) -> tuple[tuple[str, ...], tuple[str, ...]] | None:
     """``(rising, falling)`` outputs of a factor at a proof level (0, 1 or 2)."""
+    if delayed and name not in DELAY_SAFE:
+        return None
     entry = None
     if level >= 2:
         entry = RATIO_GUARDED.get(variant, {}).get(name)
@@ -238,8 +260,8 @@ def _entry(name: str, variant: str, level: int) -> tuple[tuple[str, ...], tuple[
 
 
 @functools.lru_cache(maxsize=4096)
-def _declare(factor: Factor, variant: str, level: int) -> Factor:
-    entry = _entry(factor.name, variant, level)
+def _declare(factor: Factor, variant: str, level: int, delayed: bool) -> Factor:
+    entry = _entry(factor.name, variant, level, delayed)
     if entry is None:
         return factor
     return dataclasses.replace(factor, rising=entry[0], falling=entry[1])
@@ -257,7 +279,7 @@ _INTERIOR = 9
 
 
 @functools.lru_cache(maxsize=256)
-def _pays(variant: str, level: int, varying: tuple[tuple[str, bool], ...]) -> bool:
+def _pays(variant: str, level: int, varying: tuple[tuple[str, bool], ...], delayed: bool) -> bool:
     """Whether the declared search visits at most :data:`PAYS` of the plain grid.
 
     The search runs one grid per group of outputs with the same declarations, over
@@ -268,7 +290,7 @@ def _pays(variant: str, level: int, varying: tuple[tuple[str, bool], ...]) -> bo
     for key in _OUTPUT_NAMES:
         sig: list[tuple[str, int]] = []
         for name in sizes:
-            entry = _entry(name, variant, level)
+            entry = _entry(name, variant, level, delayed)
             if entry is not None and key in entry[0]:
                 sig.append((name, 1))
             elif entry is not None and key in entry[1]:
@@ -298,7 +320,13 @@ def declarations(factors: list[Factor], variant: str) -> list[Factor]:
     level = _level(factors, variant)
     if level is None:
         return factors
-    return [_declare(f, variant, level) for f in factors]
+    delayed = _delayed(factors)
+    return [_declare(f, variant, level, delayed) for f in factors]
+
+
+def _delayed(factors: list[Factor]) -> bool:
+    """Whether the timer's output delay is in the model (a positive ``timer.delay``)."""
+    return any(f.name == "timer.delay" and f.high > 0.0 for f in factors)
 
 
 def declared(factors: list[Factor], variant: str) -> list[Factor]:
@@ -313,6 +341,7 @@ def declared(factors: list[Factor], variant: str) -> list[Factor]:
     if level is None:
         return factors
     varying = tuple((f.name, f.monotone) for f in factors if is_varying(f))
-    if not _pays(variant, level, varying):
+    delayed = _delayed(factors)
+    if not _pays(variant, level, varying, delayed):
         return factors
-    return [_declare(f, variant, level) for f in factors]
+    return [_declare(f, variant, level, delayed) for f in factors]
