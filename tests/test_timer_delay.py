@@ -158,3 +158,24 @@ def test_diode_equation_with_delay_matches_delayed_comparator(ra: float, td: flo
     if td == 0.0:
         ref = diode_equation_high_time(ra, c, V, K, i_s, nvt, I_DRAIN, rb)
         assert float(th) == pytest.approx(float(ref), rel=1e-12)
+
+
+def test_a_fast_astable_notes_the_timer_delay_share() -> None:
+    # common practice: at 100 kHz a few hundred ns per edge is several per cent of the
+    # period; at 10 Hz it is nothing
+    import timespec
+    from timespec.design.solver import solve_block
+
+    def codes(freq: str) -> set[str]:
+        spec = timespec.parse(
+            "defaults:\n  supply 5 V ±5%\n  timer cmos\n"
+            "  resistors E96 1%, 1k to 1M\n  capacitors E12 5% C0G, 100p to 100n\n"
+            f"astable a:\n  frequency {freq} ±15%\n",
+            "t.tspec",
+        )
+        res = solve_block(spec.blocks[0])
+        assert res.best is not None
+        return {f.code for f in res.best.findings}
+
+    assert "timer-delay-share" in codes("100 kHz")
+    assert "timer-delay-share" not in codes("100 Hz")

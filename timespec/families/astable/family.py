@@ -63,6 +63,26 @@ def _ohms(r: float) -> str:
     return f"{format_rkm(r, 'resistance')}Ω"
 
 
+def _delay_share(block: Block, extremes: Mapping[str, tuple[float, float]]) -> list[Finding]:
+    """A note when the timer's output delay is more than 1 % of the shortest period."""
+    timer = block.timer
+    assert timer is not None
+    t_lo = extremes.get("period", (math.nan, math.nan))[0]
+    d_hi = timer.delay_band(block.conditions.supply.low)[1]
+    if not (math.isfinite(t_lo) and t_lo > 0 and 2 * d_hi > 0.01 * t_lo):
+        return []
+    return [
+        Finding(
+            "note",
+            "timer-delay-share",
+            f"the {timer.name} timer's output delay (up to {format_quantity(d_hi, 'time')} "
+            f"per edge) is {2 * d_hi / t_lo * 100:.2g} % of the shortest period "
+            f"{format_quantity(t_lo, 'time')}; the worst case includes the class's band (from "
+            "memory), so check it against your part's datasheet.",
+        )
+    ]
+
+
 def _outputs(th: FloatArray, tl: FloatArray) -> dict[str, FloatArray]:
     """All five outputs from the two half-periods (``inf`` when it stalls)."""
     period = np.asarray(th + tl, dtype=np.float64)
@@ -293,5 +313,6 @@ class Astable:
                 )
             )
         out.extend(node_stray_finding(design.part("C"), timer))
+        out.extend(_delay_share(block, extremes))
         out.extend(dielectric_findings(block, design.part("C")))
         return out
