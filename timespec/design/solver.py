@@ -41,6 +41,7 @@ from timespec.errors import SpecValueError
 from timespec.families import family
 from timespec.families.goals import window_score
 from timespec.families.protocol import Family
+from timespec.language.arguments import error_at
 from timespec.model import Block, Spec
 from timespec.parts import series as eseries
 from timespec.parts.part import Design
@@ -419,28 +420,15 @@ def _check_finite(block: Block, cand: Candidate, meets: bool) -> None:
             meets and not all(math.isfinite(v) for v in values)
         )
         if bad:
-            raise _located(
-                block,
+            raise error_at(
+                SpecValueError,
                 f"block '{block.name}': the computed {out.label or out.name} is not a finite "
                 f"number (nominal {out.nominal:g}, worst case {out.low:g} to {out.high:g}); "
                 "no verdict is given",
+                block.pos,
                 "some value of the spec drives the model outside floating-point range: "
                 "check its magnitudes and units",
             )
-
-
-def _located(block: Block, message: str, hint: str) -> SpecValueError:
-    pos = block.pos
-    if pos is None:
-        return SpecValueError(message, hint=hint)
-    return SpecValueError(
-        message,
-        path=pos.path,
-        line=pos.line,
-        column=pos.column,
-        source_line=pos.source_line,
-        hint=hint,
-    )
 
 
 def solve(spec: Spec) -> Result:
