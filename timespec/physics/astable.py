@@ -250,16 +250,30 @@ def diode_high_time(
     handbook; the steering-diode circuit is common practice.
     """
     lo, hi = _levels(v_supply, threshold_ratio)
+    return _drop_charge(ra, rb, c, v_supply, v_diode, lo, hi, i_drain)
+
+
+def _drop_charge(
+    ra: ArrayLike,
+    rb: ArrayLike,
+    c: ArrayLike,
+    v_supply: ArrayLike,
+    v_diode: ArrayLike,
+    v_from: ArrayLike,
+    v_to: ArrayLike,
+    i_drain: ArrayLike,
+) -> FloatArray:
+    """Constant-drop diode charge from ``v_from`` up to ``v_to`` (both pieces)."""
     v = as_float_array(v_supply)
     vd = as_float_array(v_diode)
     r_a = as_float_array(ra)
     r_b = as_float_array(rb)
     with np.errstate(divide="ignore", invalid="ignore"):
         v_x = v - vd - vd * (r_a / r_b)
-    # Piece 1: diode on, from lo up to min(hi, v_x); piece 2: diode off, up to hi.
-    v_switch = np.clip(v_x, lo, hi)
-    t_on = charge_time(r_a, c, v - vd, lo, v_switch, i_drain)
-    t_off = charge_time(r_a + r_b, c, v, v_switch, hi, i_drain)
+    # Piece 1: diode on, up to min(v_to, v_x); piece 2: diode off, up to v_to.
+    v_switch = np.clip(v_x, v_from, v_to)
+    t_on = charge_time(r_a, c, v - vd, v_from, v_switch, i_drain)
+    t_off = charge_time(r_a + r_b, c, v, v_switch, v_to, i_drain)
     return as_float_array(t_on + t_off)
 
 

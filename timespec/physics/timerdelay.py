@@ -25,6 +25,8 @@ import numpy as np
 
 from timespec.physics._types import ArrayLike, FloatArray, as_float_array, quiet
 from timespec.physics.astable import (
+    _drop_charge,
+    _levels,
     _node_drop,
     diode_equation_charge,
     discharge_node,
@@ -37,11 +39,6 @@ __all__ = [
     "diode_equation_delayed_times",
     "feedback_delayed_times",
 ]
-
-
-def _levels(v_supply: ArrayLike, threshold_ratio: ArrayLike) -> tuple[FloatArray, FloatArray]:
-    upper = as_float_array(threshold_ratio) * as_float_array(v_supply)
-    return as_float_array(0.5 * upper), upper
 
 
 @quiet
@@ -158,25 +155,6 @@ def feedback_delayed_times(
     t_h = td + charge_time(r_high, c, v_high, v_bot, hi, i_drain)
     t_l = td + charge_time(r_low, c, v_low, v_top, lo, i_drain)
     return as_float_array(t_h), as_float_array(t_l)
-
-
-def _drop_charge(
-    ra: FloatArray,
-    rb: FloatArray,
-    c: FloatArray,
-    v: FloatArray,
-    vd: FloatArray,
-    v_from: FloatArray,
-    v_to: FloatArray,
-    i: FloatArray,
-) -> FloatArray:
-    """Constant-drop diode charge from ``v_from`` up to ``v_to`` (both pieces)."""
-    with np.errstate(divide="ignore", invalid="ignore"):
-        v_x = v - vd - vd * (ra / rb)
-    v_switch = np.clip(v_x, v_from, v_to)
-    t_on = charge_time(ra, c, v - vd, v_from, v_switch, i)
-    t_off = charge_time(ra + rb, c, v, v_switch, v_to, i)
-    return as_float_array(t_on + t_off)
 
 
 @quiet
