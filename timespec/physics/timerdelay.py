@@ -41,6 +41,27 @@ __all__ = [
 ]
 
 
+def _discharge_path(
+    ra: ArrayLike,
+    rb: ArrayLike,
+    c: ArrayLike,
+    v: FloatArray,
+    r_on: ArrayLike,
+    lo: FloatArray,
+    i: ArrayLike,
+    td: FloatArray,
+) -> tuple[FloatArray, FloatArray, FloatArray]:
+    """The discharge phase through ``RB`` into the discharge pin: ``(v_n, R, v_bot)``.
+
+    ``v_n`` and ``R = RB + r_n`` are the Thevenin source seen by the capacitor
+    (:func:`~timespec.physics.astable.discharge_node`), ``v_bot`` the undershoot
+    ``t_pd`` past ``kV/2``.
+    """
+    v_n, r_n = discharge_node(v, ra, r_on)
+    r_dis = as_float_array(as_float_array(rb) + r_n)
+    return v_n, r_dis, threshold_from_time(td, r_dis, c, v_n, lo, i)
+
+
 @quiet
 def classic_delayed_times(
     ra: ArrayLike,
@@ -92,12 +113,10 @@ def classic_delayed_times(
     """
     lo, hi = _levels(v_supply, threshold_ratio)
     v = as_float_array(v_supply)
-    v_n, r_n = discharge_node(v, ra, r_on)
     r_ch = as_float_array(ra) + as_float_array(rb)
-    r_dis = as_float_array(rb) + r_n
     td = as_float_array(t_pd)
+    v_n, r_dis, v_bot = _discharge_path(ra, rb, c, v, r_on, lo, i_drain, td)
     v_top = threshold_from_time(td, r_ch, c, v, hi, i_drain)
-    v_bot = threshold_from_time(td, r_dis, c, v_n, lo, i_drain)
     t_h = td + charge_time(r_ch, c, v, v_bot, hi, i_drain)
     t_l = td + charge_time(r_dis, c, v_n, v_top, lo, i_drain)
     return as_float_array(t_h), as_float_array(t_l)
@@ -217,9 +236,7 @@ def diode_delayed_times(
     i = as_float_array(i_drain)
     td = as_float_array(t_pd)
     c_a = as_float_array(c)
-    v_n, r_n = discharge_node(v, r_a, r_on)
-    r_dis = r_b + r_n
-    v_bot = threshold_from_time(td, r_dis, c_a, v_n, lo, i)
+    v_n, r_dis, v_bot = _discharge_path(r_a, r_b, c_a, v, r_on, lo, i, td)
     t_h = td + _drop_charge(r_a, r_b, c_a, v, vd, np.minimum(v_bot, hi), hi, i)
     # overshoot past kV: through RA while below v_x, then through RA + RB
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -302,9 +319,7 @@ def diode_equation_delayed_times(
     i_s = as_float_array(is_t)
     nvt = as_float_array(n_vt)
     g_b = 1.0 / r_b
-    v_n, r_n = discharge_node(v, r_a, r_on)
-    r_dis = r_b + r_n
-    v_bot = threshold_from_time(td, r_dis, c_a, v_n, lo, i)
+    v_n, r_dis, v_bot = _discharge_path(r_a, r_b, c_a, v, r_on, lo, i, td)
     t_h = td + diode_equation_charge(r_a, c_a, v, np.minimum(v_bot, hi), hi, i_s, nvt, i, r_b)
 
     def current(vc: FloatArray) -> FloatArray:
