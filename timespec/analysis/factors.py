@@ -78,6 +78,22 @@ class Factor:
         end for each extreme instead of enumerating both, which halves its grid
         per declared factor.  A declaration is a proof obligation of the family
         that makes it; tests compare the reduced search with the full one.
+    through : str, optional
+        Name of one effective value this factor acts through (e.g. ``"C"`` for
+        the tolerance, tempco, ageing and DC-bias factors of capacitor ``C`` and
+        the node stray that adds to it): the model sees the factors that share
+        it only through that value, which rises with each of them (see
+        ``pivot``).  The worst-case search then visits only the lowest and the
+        highest effective value instead of every combination of their ends,
+        which is exact whenever the outputs are monotone in each factor (the
+        premise of the corner search): an output monotone along every edge of
+        the box cannot peak at an effective value strictly inside the range.
+        Empty (default): the factor is enumerated on its own.
+    pivot : tuple of (str, float), optional
+        For a factor that multiplies an offset of another factor (a tempco,
+        ``(T − 25)``): ``(name, value)``; the effective value rises with this
+        factor where ``name`` is above ``value`` and falls where it is below.
+        ``None`` (default): it always rises.
 
     Raises
     ------
@@ -97,10 +113,14 @@ class Factor:
     group: str = ""
     rising: tuple[str, ...] = ()
     falling: tuple[str, ...] = ()
+    through: str = ""
+    pivot: tuple[str, float] | None = None
 
     def __post_init__(self) -> None:
         if not self.name:
             raise ValueError("a factor needs a non-empty name")
+        if self.pivot is not None and not self.through:
+            raise ValueError(f"factor {self.name!r}: a pivot needs a 'through' value")
         for field in ("nominal", "low", "high", "sigmas"):
             value = getattr(self, field)
             if not math.isfinite(value):

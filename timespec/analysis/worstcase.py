@@ -5,15 +5,23 @@ Every output is evaluated at every corner of the box spanned by the varying fact
 over the whole box lie at corners, so the result is exact.  Factors marked
 ``monotone=False`` (e.g. temperature feeding a parabolic tempco) get a grid of evenly
 spaced values over their range instead of just the two ends.
+
+Two reductions never change the result of a model that is monotone in each
+factor, only the number of points visited: factors that declare an output
+``rising``/``falling`` are fixed at the end that gives each extreme, and factors
+that act through one effective value (``Factor.through``, e.g. a resistor's
+tolerance and tempco) are tied to that value's lowest and highest combination.
 """
 
 from __future__ import annotations
 
+import functools
 import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
 import numpy as np
+import numpy.typing as npt
 
 from timespec.analysis.factors import (
     Evaluate,
@@ -28,6 +36,8 @@ from timespec.analysis.factors import (
 __all__ = ["Extremes", "corner_label", "grid_size", "worst_case", "worst_case_many"]
 
 _CHUNK = 65_536  # grid points evaluated per call of the model
+#: Grids up to this size keep their level digits cached between searches.
+_DIGIT_CACHE_LIMIT = 1 << 16
 
 
 @dataclass(frozen=True)
@@ -74,9 +84,13 @@ def grid_size(factors: Sequence[Factor], *, interior_points: int = 9) -> int:
     Returns
     -------
     int
-        ``2**m * interior_points**k`` for ``m`` monotone and ``k`` other varying factors.
+        ``2**m * interior_points**k`` for ``m`` monotone and ``k`` other varying factors,
+        where the factors that act through one effective value
+        (``Factor.through``) count as one monotone factor.
     """
-    return math.prod(len(_levels(f, interior_points)) for f in factors if is_varying(f))
+    facs = [f for f in factors if is_varying(f)]
+    known = {f.name: f.nominal for f in factors if not is_varying(f)}
+    return _points(_dimensions(facs, known, interior_points))
 
 
 class _Tracker:
@@ -107,19 +121,135 @@ class _Tracker:
             self.high, self.high_index = float(values[i_hi]), offset + i_hi
 
 
-def _point(
-    index: int,
-    varying: Sequence[Factor],
-    levels: Sequence[FloatArray],
-    strides: Sequence[int],
-) -> dict[str, float]:
+@dataclass(frozen=True)
+class _Dim:
+    """One axis of the search grid: one factor, or factors that move together.
+
+    ``table[level, j]`` is the value of ``names[j]`` at that level.
+    """
+
+    names: tuple[str, ...]
+    table: FloatArray
+
+
+def _direction(factor: Factor, context: Mapping[str, float]) -> int:
+    """+1 when ``factor`` raises its effective value, −1 when it lowers it (``context``
+    holds the pivot factor's value)."""
+    if factor.pivot is None:
+        return 1
+    name, value = factor.pivot
+    return -1 if context.get(name, value) < value else 1
+
+
+def _tied_rows(
+    groups: Sequence[Sequence[Factor]], context: Mapping[str, float]
+) -> list[list[float]]:
+    """Rows of member values: every combination of each group at its lowest or
+    highest effective value, the groups in order (the last varies fastest)."""
+    rows: list[list[float]] = [[]]
+    for members in groups:
+        ends = []
+        for top in (False, True):
+            ends.append([m.high if (_direction(m, context) > 0) == top else m.low for m in members])
+        rows = [row + end for row in rows for end in ends]
+    return rows
+
+
+def _dimensions(
+    free: Sequence[Factor],
+    known: Mapping[str, float],
+    interior_points: int,
+) -> list[_Dim]:
+    """The grid's axes: each free factor alone, except that factors acting
+    through one effective value (``Factor.through``) are tied to its two
+    extremes; tied groups whose direction turns on a free factor (a tempco on
+    the temperature) share one axis with that factor.
+
+    ``known`` holds the values of factors that are not free (declared ends,
+    fixed factors) for the pivots.
+    """
+    free_names = {f.name for f in free}
+    by_through: dict[str, list[Factor]] = {}
+    for f in free:
+        if f.through and f.monotone:
+            by_through.setdefault(f.through, []).append(f)
+    tied: dict[str, list[Factor]] = {}
+    for key, members in by_through.items():
+        pivots = {m.pivot[0] for m in members if m.pivot is not None}
+        if len(members) >= 2 and len(pivots) <= 1:
+            tied[key] = members
+    in_tie = {m.name for members in tied.values() for m in members}
+    # tied groups keyed by the free factor their direction turns on ("" for none)
+    by_context: dict[str, list[list[Factor]]] = {}
+    for members in tied.values():
+        pivots = {m.pivot[0] for m in members if m.pivot is not None}
+        context = next(iter(pivots)) if pivots else ""
+        by_context.setdefault(context if context in free_names else "", []).append(members)
+    dims: list[_Dim] = []
+    for f in free:
+        if f.name in in_tie or f.name in by_context:
+            continue
+        dims.append(_Dim((f.name,), _levels(f, interior_points)[:, None]))
+    for context, groups in by_context.items():
+        names = tuple(m.name for members in groups for m in members)
+        if not context:
+            rows = _tied_rows(groups, known)
+            dims.append(_Dim(names, np.array(rows, dtype=np.float64)))
+            continue
+        pivot_factor = next(f for f in free if f.name == context)
+        table = [
+            [float(t), *row]
+            for t in _levels(pivot_factor, interior_points)
+            for row in _tied_rows(groups, {**known, context: float(t)})
+        ]
+        dims.append(_Dim((context, *names), np.array(table, dtype=np.float64)))
+    return dims
+
+
+@functools.lru_cache(maxsize=32)
+def _digits(sizes: tuple[int, ...]) -> tuple[npt.NDArray[np.int32], ...]:
+    """Level of every axis at every flat grid index (last axis fastest), cached."""
+    count = math.prod(sizes)
+    index = np.arange(count, dtype=np.int32)
+    out = []
+    stride = count
+    for n in sizes:
+        stride //= n
+        digits = (index // stride) % n
+        digits.flags.writeable = False
+        out.append(digits)
+    return tuple(out)
+
+
+def _grid(dims: Sequence[_Dim]) -> tuple[dict[str, FloatArray], int]:
+    """Every factor's column over the full grid of ``dims``, and its size."""
+    sizes = tuple(d.table.shape[0] for d in dims)
+    count = math.prod(sizes)
+    digits = _digits.__wrapped__(sizes) if count > _DIGIT_CACHE_LIMIT else _digits(sizes)
+    grid: dict[str, FloatArray] = {}
+    for dim, level in zip(dims, digits, strict=True):
+        for j, name in enumerate(dim.names):
+            grid[name] = dim.table[level, j]
+    return grid, count
+
+
+def _point(index: int, free: Sequence[Factor], dims: Sequence[_Dim]) -> dict[str, float]:
     """Factor values of grid point ``index`` (``-1``: the nominal point)."""
     if index < 0:
-        return {f.name: f.nominal for f in varying}
-    return {
-        f.name: float(lv[(index // st) % len(lv)])
-        for f, lv, st in zip(varying, levels, strides, strict=True)
-    }
+        return {f.name: f.nominal for f in free}
+    out: dict[str, float] = {}
+    rest = index
+    for dim in reversed(dims):
+        n = dim.table.shape[0]
+        level = rest % n
+        rest //= n
+        for j, name in enumerate(dim.names):
+            out[name] = float(dim.table[level, j])
+    return {f.name: out[f.name] for f in free}
+
+
+def _points(dims: Sequence[_Dim]) -> int:
+    return math.prod(d.table.shape[0] for d in dims)
 
 
 def worst_case(
@@ -238,55 +368,33 @@ def worst_case_many(
     nominal_in.update(ov)
     nominal = call_evaluate(evaluate, nominal_in, d_total)
 
-    # Outputs grouped by the factors declared monotone for them (sign per factor).
-    groups: dict[tuple[tuple[str, int], ...], list[str]] = {}
-    for key in nominal:
-        sig = tuple(
-            (f.name, 1 if key in f.rising else -1)
-            for f in varying
-            if key in f.rising or key in f.falling
-        )
-        groups.setdefault(sig, []).append(key)
-
+    plan = _plan(varying, list(nominal), by_name, fixed, interior_points)
     low_t: dict[str, list[_Tracker]] = {k: [] for k in nominal}
     high_t: dict[str, list[_Tracker]] = {k: [] for k in nominal}
     low_at: dict[str, list[dict[str, float]]] = {k: [] for k in nominal}
     high_at: dict[str, list[dict[str, float]]] = {k: [] for k in nominal}
-    for sig, keys in groups.items():
-        declared = dict(sig)
-        free = [f for f in varying if f.name not in declared]
-        levels = [_levels(f, interior_points) for f in free]
-        count = math.prod(len(lv) for lv in levels)
+    for search in plan:
+        count = _points(search.dims)
         if count > max_points:
             raise ValueError(
                 f"worst-case grid has {count} points, more than max_points={max_points}; "
                 "mark fewer factors monotone=False, lower interior_points or raise max_points"
             )
-        strides = [math.prod(len(lv) for lv in levels[j + 1 :]) for j in range(len(levels))]
-        index = np.arange(count, dtype=np.int64)
-        grid = {
-            f.name: lv[(index // st) % len(lv)]
-            for f, lv, st in zip(free, levels, strides, strict=True)
-        }
-        sides = ("low", "high") if declared else ("both",)
-        for side in sides:
-            ends = {
-                name: (by_name[name].low if (sign > 0) == (side == "low") else by_name[name].high)
-                for name, sign in declared.items()
-            }
-            trackers = _search(fixed, grid, ends, ov, count, d_total, evaluate, nominal, keys)
-            for key in keys:
-                for j, tracker in enumerate(trackers[key]):
-                    at = _point(tracker.low_index, free, levels, strides)
-                    at_hi = _point(tracker.high_index, free, levels, strides)
-                    if tracker.nan_index is not None:
-                        at = at_hi = _point(tracker.nan_index, free, levels, strides)
-                    at = {**at, **ends} if tracker.low_index >= 0 else at
-                    at_hi = {**at_hi, **ends} if tracker.high_index >= 0 else at_hi
-                    if side in ("low", "both"):
-                        _store(low_t[key], low_at[key], j, tracker, at)
-                    if side in ("high", "both"):
-                        _store(high_t[key], high_at[key], j, tracker, at_hi)
+        grid, _ = _grid(search.dims)
+        keys = sorted({key for key, _ in search.tasks})
+        trackers = _search(fixed, grid, search.ends, ov, count, d_total, evaluate, nominal, keys)
+        for key, side in search.tasks:
+            for j, tracker in enumerate(trackers[key]):
+                at = _point(tracker.low_index, search.free, search.dims)
+                at_hi = _point(tracker.high_index, search.free, search.dims)
+                if tracker.nan_index is not None:
+                    at = at_hi = _point(tracker.nan_index, search.free, search.dims)
+                at = {**at, **search.ends} if tracker.low_index >= 0 else at
+                at_hi = {**at_hi, **search.ends} if tracker.high_index >= 0 else at_hi
+                if side in ("low", "both"):
+                    _store(low_t[key], low_at[key], j, tracker, at)
+                if side in ("high", "both"):
+                    _store(high_t[key], high_at[key], j, tracker, at_hi)
     results: list[dict[str, Extremes]] = []
     for j in range(d_total):
         res: dict[str, Extremes] = {}
@@ -300,6 +408,68 @@ def worst_case_many(
                 res[key] = Extremes(nom, lo.low, hi.high, low_at[key][j], high_at[key][j])
         results.append(res)
     return results
+
+
+@dataclass(frozen=True)
+class _Search:
+    """One grid to evaluate: the free factors' axes, the declared factors' ends, and
+    which extreme (``low``, ``high`` or ``both``) of which output it decides."""
+
+    free: tuple[Factor, ...]
+    dims: tuple[_Dim, ...]
+    ends: Mapping[str, float]
+    tasks: tuple[tuple[str, str], ...]
+
+
+#: Declarations are used when their grids together visit at most this share of
+#: the points of the one undeclared grid (each extra grid costs a model call).
+DECLARED_PAYS = 0.75
+
+
+def _plan(
+    varying: Sequence[Factor],
+    keys: Sequence[str],
+    by_name: Mapping[str, Factor],
+    fixed: Sequence[Factor],
+    interior_points: int,
+) -> list[_Search]:
+    """The grids of a search: one per set of declared ends, shared by every output
+    and extreme that needs it, or the one undeclared grid when that is cheaper."""
+    fixed_values = {f.name: f.nominal for f in fixed}
+    plain_dims = tuple(_dimensions(varying, fixed_values, interior_points))
+    plain = _Search(tuple(varying), plain_dims, {}, tuple((k, "both") for k in keys))
+    searches: dict[
+        tuple[object, ...], tuple[tuple[Factor, ...], dict[str, float], list[tuple[str, str]]]
+    ] = {}
+    for key in keys:
+        declared = {
+            f.name: (1 if key in f.rising else -1)
+            for f in varying
+            if key in f.rising or key in f.falling
+        }
+        free = tuple(f for f in varying if f.name not in declared)
+        for side in ("low", "high") if declared else ("both",):
+            ends = {
+                name: (by_name[name].low if (sign > 0) == (side == "low") else by_name[name].high)
+                for name, sign in declared.items()
+            }
+            ident = (tuple(f.name for f in free), tuple(sorted(ends.items())))
+            entry = searches.setdefault(ident, (free, ends, []))
+            entry[2].append((key, side))
+    if len(searches) == 1 and not next(iter(searches.values()))[1]:
+        return [plain]
+    plan = [
+        _Search(
+            free,
+            tuple(_dimensions(free, {**fixed_values, **ends}, interior_points)),
+            ends,
+            tuple(tasks),
+        )
+        for free, ends, tasks in searches.values()
+    ]
+    if sum(_points(s.dims) for s in plan) > DECLARED_PAYS * _points(plain_dims):
+        return [plain]
+    return plan
 
 
 def _store(
@@ -369,7 +539,7 @@ def corner_label(at: Mapping[str, float], factors: Sequence[Factor]) -> str:
     Parameters
     ----------
     at : mapping of str to float
-        Factor values, as in :attr:`Extremes.low_at`.
+        Factor values, as in ``Extremes.low_at``.
     factors : sequence of Factor
         The factors, in the order they should be listed.
 

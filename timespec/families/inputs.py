@@ -30,6 +30,8 @@ __all__ = [
 ]
 
 REFERENCE_C = 25.0  # °C, where tolerances and tempcos are referred to
+#: A tempco raises its part's value above the reference temperature, lowers it below.
+_TEMPCO_PIVOT = ("temp", REFERENCE_C)
 
 
 def _tol_distribution(block: Block) -> tuple[str, float]:
@@ -66,6 +68,10 @@ def part_factors(block: Block, part: Part) -> list[Factor]:
     The tempco is a factor of its own and the temperature is shared by all
     parts, so parts of one board see one temperature (a systematic, correlated
     effect), while each part's coefficient varies within its band.
+
+    Every factor but the value reaches the model only through :func:`apply_part`
+    and says so (``through`` the part's reference, the tempco turning at 25 °C), so
+    the worst-case search ties them (``Factor.through``).
     """
     dist, sigmas = _tol_distribution(block)
     ref = part.ref
@@ -82,13 +88,25 @@ def part_factors(block: Block, part: Part) -> list[Factor]:
             dist,  # type: ignore[arg-type]
             sigmas,
             group=ref,
+            through=ref,
         ),
     ]
     cond = block.conditions
     span = cond.ambient_high > REFERENCE_C or cond.ambient_low < REFERENCE_C
     if part.kind == "resistance":
         tc = part.tempco_ppm or 0.0
-        out.append(Factor(f"{ref}.tc", f"{ref} tempco (±{tc:g} ppm/K)", 0.0, -tc, tc, group=ref))
+        out.append(
+            Factor(
+                f"{ref}.tc",
+                f"{ref} tempco (±{tc:g} ppm/K)",
+                0.0,
+                -tc,
+                tc,
+                group=ref,
+                through=ref,
+                pivot=_TEMPCO_PIVOT,
+            )
+        )
     else:
         assert part.dielectric is not None
         d = dielectrics.dielectric(part.dielectric)
@@ -103,6 +121,8 @@ def part_factors(block: Block, part: Part) -> list[Factor]:
                     lo,
                     hi,
                     group=ref,
+                    through=ref,
+                    pivot=_TEMPCO_PIVOT,
                 )
             )
         elif span:
@@ -115,6 +135,7 @@ def part_factors(block: Block, part: Part) -> list[Factor]:
                     lo,
                     hi,
                     group=ref,
+                    through=ref,
                 )
             )
     age = part.ageing * cond.life_years
@@ -138,6 +159,7 @@ def part_factors(block: Block, part: Part) -> list[Factor]:
                 -age_low,
                 age,
                 group=ref,
+                through=ref,
             )
         )
     if losses is not None and losses.bias > 0:
@@ -151,6 +173,7 @@ def part_factors(block: Block, part: Part) -> list[Factor]:
                 -losses.bias,
                 0.0,
                 group=ref,
+                through=ref,
             )
         )
     return out

@@ -165,13 +165,16 @@ def stray_band(gate: GateClass | None) -> tuple[float, float]:
     return pin[0] + BOARD_STRAY[0], pin[1] + BOARD_STRAY[1]
 
 
-def stray_factor(gate: GateClass | None) -> Factor:
+def stray_factor(gate: GateClass | None, adds_to: str = "C") -> Factor:
     """The node's stray capacitance (input pin plus board) as a varying input.
 
     Parameters
     ----------
     gate
         The gate class, or ``None`` for a generic CMOS logic input.
+    adds_to
+        The timing capacitor's reference: the model adds the stray to that part's
+        value and uses it nowhere else (:attr:`~timespec.analysis.Factor.through`).
 
     Returns
     -------
@@ -187,6 +190,7 @@ def stray_factor(gate: GateClass | None) -> Factor:
         cs_lo,
         cs_hi,
         group="stray",
+        through=adds_to,
     )
 
 

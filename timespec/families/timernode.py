@@ -41,13 +41,16 @@ def node_stray_band(timer: TimerClass) -> tuple[float, float]:
     return timer.c_node[0] + BOARD_STRAY[0], timer.c_node[1] + BOARD_STRAY[1]
 
 
-def node_stray_factor(timer: TimerClass) -> Factor:
+def node_stray_factor(timer: TimerClass, adds_to: str = "C") -> Factor:
     """The timing node's stray capacitance as a varying input.
 
     Parameters
     ----------
     timer
         The timer class.
+    adds_to
+        The timing capacitor's reference: the model adds the stray to that part's
+        value and uses it nowhere else (:attr:`~timespec.analysis.Factor.through`).
 
     Returns
     -------
@@ -63,6 +66,7 @@ def node_stray_factor(timer: TimerClass) -> Factor:
         lo,
         hi,
         group="stray",
+        through=adds_to,
     )
 
 

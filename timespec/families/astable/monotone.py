@@ -2,26 +2,23 @@
 
 The worst-case search fixes a factor declared ``rising``/``falling`` for an output
 at the end that gives each extreme (see :class:`timespec.analysis.Factor`).  This
-module holds the astable's declarations, the box checks that guard the
-conditional ones, and the estimate of whether declaring pays on a given grid.
-Tests compare every declaration with the full search (exact equality).
+module holds the astable's declarations and the box checks that guard the
+conditional ones.  Tests compare every declaration with the full search (exact equality).
 """
 
 from __future__ import annotations
 
 import dataclasses
 import functools
-import math
 from collections.abc import Mapping
 
-from timespec.analysis import Factor, is_varying
+from timespec.analysis import Factor
 from timespec.families.inputs import REFERENCE_C
 
 __all__ = [
     "ALWAYS",
     "DELAY_SAFE",
     "GUARDED",
-    "PAYS",
     "RATIO_GUARDED",
     "declarations",
     "declared",
@@ -267,43 +264,6 @@ def _declare(factor: Factor, variant: str, level: int, delayed: bool) -> Factor:
     return dataclasses.replace(factor, rising=entry[0], falling=entry[1])
 
 
-_OUTPUT_NAMES = ("frequency", "period", "duty", "high", "low")
-
-#: Declarations are used when the per-output grids together visit at most this
-#: share of the plain grid's points (each extra grid costs a model call or more:
-#: measured on the demo blocks, a saving of 10 % does not pay, 40 % does).
-PAYS = 0.75
-
-#: Grid levels of a factor not marked monotone (the engine's default).
-_INTERIOR = 9
-
-
-@functools.lru_cache(maxsize=256)
-def _pays(variant: str, level: int, varying: tuple[tuple[str, bool], ...], delayed: bool) -> bool:
-    """Whether the declared search visits at most :data:`PAYS` of the plain grid.
-
-    The search runs one grid per group of outputs with the same declarations, over
-    the undeclared factors, once per extreme (the undeclared group once).
-    """
-    sizes = {name: 2 if monotone else _INTERIOR for name, monotone in varying}
-    groups: set[tuple[tuple[str, int], ...]] = set()
-    for key in _OUTPUT_NAMES:
-        sig: list[tuple[str, int]] = []
-        for name in sizes:
-            entry = _entry(name, variant, level, delayed)
-            if entry is not None and key in entry[0]:
-                sig.append((name, 1))
-            elif entry is not None and key in entry[1]:
-                sig.append((name, -1))
-        groups.add(tuple(sig))
-    cost = 0
-    for group in groups:
-        declared = {name for name, _ in group}
-        free = math.prod(n for name, n in sizes.items() if name not in declared)
-        cost += (2 if group else 1) * free
-    return cost <= PAYS * math.prod(sizes.values())
-
-
 def _level(factors: list[Factor], variant: str) -> int | None:
     """Proof level the box allows: None (nothing), 0 (:data:`ALWAYS`), 1
     (:data:`GUARDED`) or 2 (:data:`RATIO_GUARDED`)."""
@@ -330,18 +290,11 @@ def _delayed(factors: list[Factor]) -> bool:
 
 
 def declared(factors: list[Factor], variant: str) -> list[Factor]:
-    """The factors as the worst-case search should get them: declared when that pays.
+    """The factors as the worst-case search should get them: every proven declaration.
 
     Declarations only change how many points the search visits, never its
-    result; where the per-output grids would together save too little
-    (:data:`PAYS`; e.g. the classic circuit without ageing), the factors are
-    returned undeclared.
+    result; the search itself falls back to the one undeclared grid where the
+    per-output grids would together save too little
+    (``DECLARED_PAYS`` in :mod:`timespec.analysis.worstcase`).
     """
-    level = _level(factors, variant)
-    if level is None:
-        return factors
-    varying = tuple((f.name, f.monotone) for f in factors if is_varying(f))
-    delayed = _delayed(factors)
-    if not _pays(variant, level, varying, delayed):
-        return factors
-    return [_declare(f, variant, level, delayed) for f in factors]
+    return declarations(factors, variant)
