@@ -111,6 +111,15 @@ def charge_time(
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         num = v_eff - v0
         den = v_eff - vth
+        rc = r_a * c_a
+        ratio = num / den
+        if not (np.isnan(ratio).any() or np.isnan(rc).any()):
+            # No NaN anywhere (the usual case): the threshold lies strictly between the
+            # start and the target exactly where num/den is a finite number above 1; an
+            # infinite ratio (den = 0, or an infinite num) never arrives, as below.
+            ok = (ratio > 1.0) & (ratio < np.inf)
+            t = np.where(ok, rc * np.log(np.where(ok, ratio, 1.0)), np.inf)
+            return as_float_array(np.where(vth == v0, 0.0, t))
         # Reached only if the threshold lies strictly between the start and the target:
         # num and den of the same sign and |den| < |num|, i.e. num/den > 1.
         reachable = (np.sign(num) * np.sign(den) > 0.0) & (np.abs(num) > np.abs(den))
