@@ -26,6 +26,7 @@ __all__ = [
     "part_factors",
     "scaled_time",
     "supply_nominal_factor",
+    "threshold_current",
     "timer_factors",
 ]
 
@@ -268,6 +269,7 @@ def timer_factors(block: Block, *, leakage: float = 0.0) -> list[Factor]:
     """
     t = block.timer
     assert t is not None
+    i_th = threshold_current(block)
     k_lo, k_hi = t.ratio_band
     k_nom = min(max(2.0 / 3.0, k_lo), k_hi)
     out = [
@@ -305,10 +307,10 @@ def timer_factors(block: Block, *, leakage: float = 0.0) -> list[Factor]:
         ),
         Factor(
             "timer.ith",
-            f"{t.name} threshold input current (0…{format_quantity(t.i_threshold_max, 'current')})",
-            0.4 * t.i_threshold_max,
+            f"{t.name} threshold input current (0…{format_quantity(i_th, 'current')})",
+            0.4 * i_th,
             0.0,
-            t.i_threshold_max,
+            i_th,
             group="timer",
         ),
     ]
@@ -324,6 +326,26 @@ def timer_factors(block: Block, *, leakage: float = 0.0) -> list[Factor]:
             )
         )
     return out
+
+
+def threshold_current(block: Block) -> float:
+    """The timer's threshold-current bound over the block's ambient range, A.
+
+    Parameters
+    ----------
+    block
+        A one-shot or astable block (``block.timer`` set).
+
+    Returns
+    -------
+    float
+        :meth:`~timespec.parts.devices.TimerClass.threshold_current_max`: the class
+        bound, widened where the ambient leaves the range it is quoted over.
+    """
+    t = block.timer
+    assert t is not None
+    c = block.conditions
+    return t.threshold_current_max(c.ambient_low, c.ambient_high)
 
 
 def scaled_time(x: Inputs, t: FloatArray) -> FloatArray:

@@ -37,9 +37,11 @@ from timespec.families.inputs import (
     part_factors,
     scaled_time,
     supply_nominal_factor,
+    threshold_current,
     timer_factors,
 )
 from timespec.families.protocol import Evaluate, Finding, FloatArray, Inputs, Output
+from timespec.families.timerclass import timer_class_findings
 from timespec.families.timernode import delay_factor, node_stray_factor, node_stray_finding
 from timespec.model import Block
 from timespec.numbers import format_quantity
@@ -263,7 +265,8 @@ class OneShot:
         -------
         list of Finding
             Trigger length against the shortest pulse, trigger spacing against
-            the longest pulse plus recovery, resistor range and drain, dielectric.
+            the longest pulse plus recovery, resistor range and drain, the node
+            stray, the timer class's ranges, dielectric.
         """
         out: list[Finding] = []
         lo, hi = extremes["width"]
@@ -317,7 +320,7 @@ class OneShot:
                     "the discharge transistor and supply carry needless current.",
                 )
             )
-        drain = timer.i_threshold_max + node_leakage(block, design)
+        drain = threshold_current(block) + node_leakage(block, design)
         v = block.conditions.supply.low
         rmax = float(monostable.max_drain_resistance(v, timer.ratio_band[1], drain))
         if r.value * (1 + r.tolerance) >= rmax:
@@ -343,5 +346,6 @@ class OneShot:
                 )
             )
         out.extend(node_stray_finding(c, timer))
+        out.extend(timer_class_findings(block))
         out.extend(dielectric_findings(block, c))
         return out

@@ -106,6 +106,21 @@ class TimerClass:
     c_node
         Capacitance the timer's own pins add to the timing node, band
         ``(min, max)``, F (threshold with trigger or discharge).  [Mem]
+    ith_ambient
+        Ambient range ``(low, high)``, °C, over which ``i_threshold_max`` is
+        quoted (:attr:`ith_held`).  [Mem]
+    ith_grows
+        Which side the threshold current grows beyond that range: ``"hot"`` (a
+        CMOS input's junction leakage, about doubling every 10 K [CP]) or
+        ``"cold"`` (a bipolar input's base current, about doubling over 80 K as
+        the current gain falls [Mem]); on the other side it falls, so the quoted
+        bound stays a bound there (:meth:`threshold_current_max`).
+    drift_ambient
+        Ambient range, °C, over which the drift bound ``drift_ppm`` is quoted
+        (:attr:`drift_held`).  [Mem]
+    supply_drift_supply
+        Supply range, V, over which ``supply_drift`` is quoted
+        (:attr:`supply_drift_held`).  [Mem]
     """
 
     name: str
@@ -126,6 +141,89 @@ class TimerClass:
     r_on_test_current: float = 4.5e-3
     t_pd: tuple[float, float] = (50e-9, 300e-9)
     c_node: tuple[float, float] = (2e-12, 10e-12)
+    ith_ambient: tuple[float, float] = (0.0, 70.0)
+    ith_grows: str = "cold"
+    drift_ambient: tuple[float, float] = (-55.0, 125.0)
+    supply_drift_supply: tuple[float, float] = (4.5, 16.0)
+
+    def threshold_current_max(self, ambient_low: float, ambient_high: float) -> float:
+        """Threshold-pin input current bound over an ambient range, A.
+
+        Parameters
+        ----------
+        ambient_low, ambient_high
+            The design's ambient range, °C.
+
+        Returns
+        -------
+        float
+            ``i_threshold_max`` inside :attr:`ith_ambient`; beyond it, on the side
+            where the current grows (:attr:`ith_grows`), ``i_threshold_max`` times
+            ``2^(ΔT/10 K)`` (hot: junction leakage about doubles every 10 K [CP])
+            or ``2^(ΔT/80 K)`` (cold: a bipolar base current about doubles from
+            25 °C to −55 °C [Mem]), ``ΔT`` the distance past the range's end.
+        """
+        lo, hi = self.ith_ambient
+        if self.ith_grows == "hot":
+            excess, doubling = max(0.0, ambient_high - hi), 10.0
+        else:
+            excess, doubling = max(0.0, lo - ambient_low), 80.0
+        return self.i_threshold_max * math.pow(2.0, excess / doubling)
+
+    @property
+    def ith_held(self) -> Held:
+        """Where ``i_threshold_max`` holds: the ambient range it is quoted over.
+
+        Returns
+        -------
+        Held
+            :attr:`ith_ambient`; beyond it the model widens the bound
+            (:meth:`threshold_current_max`).  [Mem]
+        """
+        return Held(
+            f"{self.name} timer threshold current ≤ {_amps(self.i_threshold_max)}",
+            "ambient",
+            self.ith_ambient[0],
+            self.ith_ambient[1],
+            "temperature",
+            "[Mem] generic class datasheets quote it over this range",
+        )
+
+    @property
+    def drift_held(self) -> Held:
+        """Where the drift bound ``drift_ppm`` holds.
+
+        Returns
+        -------
+        Held
+            :attr:`drift_ambient`.  [Mem]
+        """
+        return Held(
+            f"{self.name} timer drift ±{self.drift_ppm:g} ppm/K",
+            "ambient",
+            self.drift_ambient[0],
+            self.drift_ambient[1],
+            "temperature",
+            "[Mem] generic class datasheets quote it over this range",
+        )
+
+    @property
+    def supply_drift_held(self) -> Held:
+        """Where the supply sensitivity ``supply_drift`` holds.
+
+        Returns
+        -------
+        Held
+            :attr:`supply_drift_supply`.  [Mem]
+        """
+        return Held(
+            f"{self.name} timer supply sensitivity ±{self.supply_drift * 100:g} %/V",
+            "supply",
+            self.supply_drift_supply[0],
+            self.supply_drift_supply[1],
+            "voltage",
+            "[Mem] generic class datasheets quote it over this supply range",
+        )
 
     def delay_band(self, supply_low: float) -> tuple[float, float]:
         """Threshold-to-output delay band at the design's lowest supply, s.
@@ -138,7 +236,7 @@ class TimerClass:
         Returns
         -------
         tuple of float
-            :attr:`t_pd`; for the CMOS class below 5 V its top grows as
+            ``t_pd``; for the CMOS class below 5 V its top grows as
             ``(5 V / supply_low)²`` (CMOS delay grows about as the square of the
             drive lost at a lower supply [Mem]); the bipolar class is used from
             4.5 V only and is taken as quoted.
@@ -155,7 +253,7 @@ class TimerClass:
         Returns
         -------
         Held
-            The saturation voltage is specified at :attr:`r_on_test_current`;
+            The saturation voltage is specified at ``r_on_test_current``;
             read as a resistance it holds up to that current (a transistor's
             saturation voltage grows faster than linearly above it).  [DS]
         """
@@ -197,6 +295,14 @@ class TimerClass:
         )
 
 
+def _amps(i: float) -> str:
+    """A current in words for a constant's description (``0.25 µA``, ``1 nA``)."""
+    for scale, unit in ((1e-3, "mA"), (1e-6, "µA"), (1e-9, "nA")):
+        if i >= scale:
+            return f"{i / scale:.3g} {unit}"
+    return f"{i / 1e-12:.3g} pA"
+
+
 TIMER_CLASSES: dict[str, TimerClass] = {
     "bipolar": TimerClass(
         name="bipolar",
@@ -220,6 +326,10 @@ TIMER_CLASSES: dict[str, TimerClass] = {
         # 100 ns typ, 300 ns max [DS]; the 50 ns floor is [Mem].
         t_pd=(50e-9, 300e-9),
         c_node=(2e-12, 10e-12),  # [Mem] a few pF per pin, two pins on the node
+        ith_ambient=(0.0, 70.0),  # [Mem] commercial-grade figure
+        ith_grows="cold",  # [Mem] a base current: rises as the current gain falls when cold
+        drift_ambient=(-55.0, 125.0),  # [Mem] the bound of the wide-range grade
+        supply_drift_supply=(4.5, 16.0),  # [Mem] quoted across the class's supply range
     ),
     "cmos": TimerClass(
         name="cmos",
@@ -239,6 +349,10 @@ TIMER_CLASSES: dict[str, TimerClass] = {
         i_out_max=10e-3,  # [Mem] ±10 mA
         t_pd=(50e-9, 400e-9),  # [Mem] a few hundred ns at 5 V, slower at 2 V
         c_node=(2e-12, 10e-12),  # [Mem] a few pF per pin, two pins on the node
+        ith_ambient=(-40.0, 85.0),  # [Mem] the 1 nA bound is an industrial-range figure
+        ith_grows="hot",  # [CP] junction leakage about doubles every 10 K
+        drift_ambient=(-40.0, 85.0),  # [Mem]
+        supply_drift_supply=(4.5, 15.0),  # [Mem] quoted on a 5 V rail and up; larger at 2–3 V
     ),
 }
 
@@ -292,12 +406,12 @@ class GateClass:
         Input leakage bound, A (either sign).  [DS]
     f_max
         Highest frequency the class is used at as an RC oscillator, Hz, at
-        :attr:`quoted_supply`.  [Mem]
+        ``quoted_supply``.  [Mem]
     r_min, r_max
         Usable feedback resistor range, Ω.  [CP]
     t_pd
         Propagation delay band ``(min, max)`` input to output, s, at
-        :attr:`quoted_supply` over the class's temperature range.  [DS/Mem]
+        ``quoted_supply`` over the class's temperature range.  [DS/Mem]
     c_input
         Input (pin) capacitance band ``(min, max)``, F.  [DS]
     quoted_supply
@@ -339,7 +453,7 @@ class GateClass:
         Returns
         -------
         float
-            ``1`` inside :attr:`speed_held`; below it ``(V_low_held / supply_low)²``.
+            ``1`` inside ``speed_held``; below it ``(V_low_held / supply_low)²``.
 
         Notes
         -----

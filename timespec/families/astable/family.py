@@ -36,6 +36,7 @@ from timespec.families.inputs import (
     timer_factors,
 )
 from timespec.families.protocol import Evaluate, Finding, FloatArray, Inputs, Output
+from timespec.families.timerclass import timer_class_findings
 from timespec.families.timernode import delay_factor, node_stray_factor, node_stray_finding
 from timespec.model import Block
 from timespec.numbers import format_quantity
@@ -256,6 +257,7 @@ class Astable:
             without rail-to-rail output, no oscillation at some corner, discharge
             current above the class limit (with the smallest RA), frequency above
             the class limit, timing resistor below the class's useful minimum,
+            the node stray, the output delay's share, the timer class's ranges
             and the capacitor's dielectric.
         """
         timer = block.timer
@@ -314,5 +316,6 @@ class Astable:
             )
         out.extend(node_stray_finding(design.part("C"), timer))
         out.extend(_delay_share(block, extremes))
+        out.extend(timer_class_findings(block))
         out.extend(dielectric_findings(block, design.part("C")))
         return out
