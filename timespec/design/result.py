@@ -79,7 +79,11 @@ class OutputResult:
 
     @property
     def excess(self) -> float:
-        """How far the worst case pokes out of the requirement, relative to its width (0 inside)."""
+        """How far the worst case pokes out of the requirement, relative to its width (0 inside).
+
+        The farther of the two sides counts (not their sum): when no design fits, the
+        closest one is the best centred, the one whose worst edge misses least.
+        """
         if self.required is None:
             return 0.0
         if not (math.isfinite(self.low) and math.isfinite(self.high)):
@@ -90,7 +94,7 @@ class OutputResult:
             if math.isfinite(w.high - w.low) and w.high > w.low
             else abs(w.centre) or 1.0
         )
-        out = max(0.0, w.low - self.low) + max(0.0, self.high - w.high)
+        out = max(0.0, w.low - self.low, self.high - w.high)
         return out / span
 
     def quantities(self) -> dict[str, pint.Quantity[Any]]:
