@@ -62,6 +62,14 @@ def _wrap(label: str, text: str, indent: int = 13) -> list[str]:
     return lines or [first.rstrip()]
 
 
+def _headed(label: str, rest: str) -> list[str]:
+    """An output's first line: its name in the 11-wide column, or on a line of its own
+    when it does not fit (``gain_margin``), so the name never runs into the text."""
+    if len(label) < 11:
+        return [f"  {label:<11}{rest}"]
+    return [f"  {label}", f"{' ' * 13}{rest}"]
+
+
 def _output_lines(out: OutputResult, result: BlockResult) -> list[str]:
     lines: list[str] = []
     label = out.name
@@ -72,10 +80,10 @@ def _output_lines(out: OutputResult, result: BlockResult) -> list[str]:
         span = format_interval(out.required.low, out.required.high, out.kind, ratio=ratio)
         if span.replace(" … ", " to ") != req and not span.startswith(("≤", "≥")):
             req += f"  ({span})"
-        lines.append(f"  {label:<11}required   {req}")
+        lines.extend(_headed(label, f"required   {req}"))
         lines.append(f"{pad}nominal    {_q(out.nominal, out)}")
     else:
-        lines.append(f"  {label:<11}nominal    {_q(out.nominal, out)}")
+        lines.extend(_headed(label, f"nominal    {_q(out.nominal, out)}"))
     wc = format_interval(out.low, out.high, out.kind, ratio=ratio)
     status = ""
     if out.required is not None:
