@@ -78,3 +78,15 @@ def test_infeasible_block_shows_the_design_with_the_smallest_worst_violation() -
     assert best > 0
     for alt in result.alternatives:
         assert worst_side(alt) >= best - 1e-15
+
+
+def test_long_output_name_does_not_run_into_its_text() -> None:
+    # regression: "gain_marginnominal" in the crystal report (the name fills the column)
+    from timespec.outputs.report import render_block
+
+    (block,) = parse(_SPEC).blocks
+    text = render_block(solve_block(block))
+    assert "gain_marginnominal" not in text
+    lines = text.splitlines()
+    i = lines.index("  gain_margin")
+    assert lines[i + 1].lstrip().startswith("nominal")
