@@ -235,7 +235,9 @@ ERRORS = [
         "range 4.5…16 V\n"
         "    oneshot a: width 150 ms ±8% at supply 18 V\n"
         "                                   ^\n"
-        "  hint: change the supply or the timer class ('timer cmos' runs from 2 V)",
+        # no class takes 18 V (the old hint pointed at 'timer cmos', which stops at 15 V)
+        "  hint: no timer class takes this supply (bipolar 4.5…16 V, cmos 2…15 V): "
+        "change the supply",
     ),
     (
         "oneshot a:\n  width 150 ms ±8%\n  duty 30% ±5%\n  supply 12 V\n",

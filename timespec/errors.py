@@ -8,17 +8,25 @@ hint where one helps.
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from dataclasses import dataclass
 
 __all__ = [
+    "MAX_ERRORS",
     "Pos",
+    "SpecEmptyError",
     "SpecError",
+    "SpecErrors",
     "SpecIncludeError",
     "SpecSyntaxError",
     "SpecUnitError",
     "SpecValueError",
     "UsageError",
+    "collect_errors",
 ]
+
+#: At most this many mistakes of one spec are reported at once.
+MAX_ERRORS = 20
 
 
 @dataclass(frozen=True)
@@ -132,6 +140,14 @@ class SpecValueError(SpecError):
     """A statement is well formed but its values make no sense (an inverted range, say)."""
 
 
+class SpecEmptyError(SpecValueError):
+    """The spec has no blocks: a file of shared ``defaults:`` meant to be included.
+
+    A tree check (``timespec check FOLDER``) skips such a file when it reaches it
+    by walking a folder; named on its own it is an error like any other.
+    """
+
+
 class SpecUnitError(SpecError):
     """A quantity has the wrong dimension or an unknown unit."""
 
@@ -142,3 +158,113 @@ class SpecIncludeError(SpecError):
 
 class UsageError(SpecError):
     """The command line or an API call was used wrongly."""
+
+
+class SpecErrors(SpecError):  # noqa: N818 - several SpecError at once
+    """Several independent mistakes of one spec, reported at once.
+
+    The exception's own message, position and hint are those of the first
+    mistake, so code that reads one error keeps working; ``errors`` holds
+    every mistake in the order of the text, at most :data:`MAX_ERRORS`.  Raised
+    through :func:`collect_errors`, the exception is also an instance of the
+    first mistake's class (a syntax error first makes it a
+    :class:`SpecSyntaxError` too).
+
+    Parameters
+    ----------
+    errors
+        The mistakes, first one first (at least two, or one and ``truncated``).
+    truncated
+        Whether more mistakes followed the ones kept.
+
+    Attributes
+    ----------
+    errors : tuple of SpecError
+        Every mistake kept, each located.
+    truncated : bool
+        Whether more followed.
+    """
+
+    def __init__(self, errors: Iterable[SpecError], *, truncated: bool = False) -> None:
+        kept = tuple(errors)
+        if not kept:
+            raise ValueError("SpecErrors needs at least one error")
+        first = kept[0]
+        super().__init__(
+            first.message,
+            path=first.path,
+            line=first.line,
+            column=first.column,
+            source_line=first.source_line,
+            hint=first.hint,
+        )
+        self.errors = kept
+        self.truncated = truncated
+
+    def __reduce__(self) -> tuple[object, ...]:
+        return (_rebuild_several, (self.errors, self.truncated))
+
+    def __str__(self) -> str:
+        text = "\n".join(SpecError.__str__(e) for e in self.errors)
+        if self.truncated:
+            where = self.path if self.path is not None else "the spec"
+            text += (
+                f"\ntimespec: stopped after {len(self.errors)} mistakes in {where}; "
+                "fix these and run it again"
+            )
+        return text
+
+
+_SEVERAL: dict[type[SpecError], type[SpecErrors]] = {}
+
+
+def _several(cls: type[SpecError]) -> type[SpecErrors]:
+    """The class of several mistakes whose first is a ``cls``: both at once."""
+    if cls is SpecError or issubclass(cls, SpecErrors):
+        return SpecErrors
+    if cls not in _SEVERAL:
+        combined = type("SpecErrors", (SpecErrors, cls), {"__doc__": SpecErrors.__doc__})
+        combined.__module__ = __name__
+        _SEVERAL.setdefault(cls, combined)
+    return _SEVERAL[cls]
+
+
+def _rebuild_several(errors: tuple[SpecError, ...], truncated: bool) -> SpecError:
+    return collect_errors(errors, truncated=truncated)
+
+
+def collect_errors(errors: Iterable[SpecError], *, truncated: bool = False) -> SpecError:
+    """One exception for the mistakes of a spec.
+
+    Parameters
+    ----------
+    errors
+        The mistakes in the order of the text; a :class:`SpecErrors` among them
+        stands for its own mistakes.  Repeats (same place and message) are dropped
+        and at most :data:`MAX_ERRORS` are kept.
+    truncated
+        Whether more mistakes followed.
+
+    Returns
+    -------
+    SpecError
+        The one mistake itself when there is exactly one (so a spec with one
+        mistake reports exactly as it always did), else a :class:`SpecErrors`
+        that is also an instance of the first mistake's class.
+    """
+    flat: list[SpecError] = []
+    seen: set[tuple[object, ...]] = set()
+    for err in errors:
+        for one in err.errors if isinstance(err, SpecErrors) else (err,):
+            key = (one.path, one.line, one.column, one.message)
+            if key not in seen:
+                seen.add(key)
+                flat.append(one)
+        truncated = truncated or (isinstance(err, SpecErrors) and err.truncated)
+    if not flat:
+        raise ValueError("collect_errors needs at least one error")
+    if len(flat) > MAX_ERRORS:
+        flat, truncated = flat[:MAX_ERRORS], True
+    if len(flat) == 1 and not truncated:
+        return flat[0]
+    return _several(type(flat[0]))(flat, truncated=truncated)

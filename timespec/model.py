@@ -9,6 +9,7 @@ this module knows about text.
 from __future__ import annotations
 
 import math
+import re
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 
@@ -17,6 +18,7 @@ from timespec.parts.devices import GateClass, TimerClass
 
 __all__ = [
     "BLOCK_KINDS",
+    "DESIGNATOR",
     "MAX_SAMPLES",
     "MAX_SEED",
     "Block",
@@ -33,6 +35,11 @@ __all__ = [
 
 #: The circuit families a block can describe.
 BLOCK_KINDS = ("oneshot", "astable", "delay", "relaxation", "crystal")
+
+#: A board reference designator: a class code of one to four capital letters, then a
+#: number from 1 with no leading zero (``R12``, ``C7``; IEEE 315 / ASME Y14.44 reference
+#: designation, letters then number; the length limits are common practice).
+DESIGNATOR = re.compile(r"[A-Z]{1,4}[1-9][0-9]{0,5}")
 
 
 @dataclass(frozen=True)
@@ -167,6 +174,12 @@ class CapacitorPolicy:
         (a multiple of the highest supply, see
         :data:`timespec.families.capacitors.CLASS2_RATING_FACTOR`); sets the DC-bias loss
         of class 2 ceramics.
+    leakage
+        The capacitors' leakage rating ``(k, floor)``: ``max(k·C·V_rated, floor)``
+        with C in µF and V in V giving µA (the datasheet form "0.01 CV or 3 µA"),
+        ``floor`` in A; ``(0, I)`` for a plain bound ``I``.  ``None``: the built-in
+        rule for electrolytics, none for ceramics and film
+        (:func:`timespec.families.capacitors.capacitor_leakage`).
     """
 
     series: str = "E12"
@@ -177,10 +190,17 @@ class CapacitorPolicy:
     pairs: bool = False
     ageing: float = 0.0
     rated_voltage: float | None = None
+    leakage: tuple[float, float] | None = None
 
     def __post_init__(self) -> None:
         _check_policy(self.tolerance, self.low, self.high, self.ageing)
         _check_rating(self.rated_voltage)
+        _check_leakage(self.leakage)
+
+
+def _check_leakage(leakage: tuple[float, float] | None) -> None:
+    if leakage is not None and not all(math.isfinite(v) and v >= 0 for v in leakage):
+        raise ValueError("a leakage rating is a size, e.g. leakage 0.01 of CV or 3 uA")
 
 
 def _check_rating(rated: float | None) -> None:
@@ -221,6 +241,9 @@ class PinnedPart:
         Where it was written.
     rated_voltage
         Capacitor rated DC voltage, V, or ``None`` for the policy's.
+    leakage
+        Capacitor leakage rating ``(k, floor)`` as for
+        :attr:`CapacitorPolicy.leakage`, or ``None`` for the policy's.
     """
 
     ref: str
@@ -232,6 +255,7 @@ class PinnedPart:
     dielectric: str | None = None
     pos: Pos | None = field(default=None, compare=False)
     rated_voltage: float | None = None
+    leakage: tuple[float, float] | None = None
 
     def __post_init__(self) -> None:
         if not (self.value > 0 and math.isfinite(self.value)):
@@ -240,7 +264,10 @@ class PinnedPart:
             raise ValueError(f"part {self.ref} has a tolerance outside 0…100 %")
         if self.rated_voltage is not None and self.kind != "capacitance":
             raise ValueError(f"part {self.ref} is not a capacitor; only capacitors are rated")
+        if self.leakage is not None and self.kind != "capacitance":
+            raise ValueError(f"part {self.ref} is not a capacitor; only capacitors leak here")
         _check_rating(self.rated_voltage)
+        _check_leakage(self.leakage)
 
 
 #: Most Monte Carlo samples a run may ask for (about 15 s for a small spec; the
@@ -342,6 +369,10 @@ class Block:
         Position of the header.
     positions
         Where each statement keyword was written, for messages.
+    refs
+        Board reference designators by part reference (``{"R": ("R12",), "C": ("C7",)}``),
+        from the ``refs`` statement; a second designator names the second part of a
+        series/parallel pair.  Empty when the spec gives none.
     """
 
     kind: str
@@ -357,10 +388,17 @@ class Block:
     statistics: Statistics = Statistics()
     pos: Pos | None = field(default=None, compare=False)
     positions: Mapping[str, Pos] = field(default_factory=dict, compare=False)
+    refs: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
 
     def __post_init__(self) -> None:
         if self.kind not in BLOCK_KINDS:
             raise ValueError(f"unknown block kind {self.kind!r}")
+        for ref, names in self.refs.items():
+            if not 1 <= len(names) <= 2:
+                raise ValueError(f"part {ref} takes one designator (two for a pair)")
+            for name in names:
+                if not DESIGNATOR.fullmatch(name):
+                    raise ValueError(f"{name!r} is not a reference designator such as R12")
 
     def requirement(self, quantity: str) -> Requirement | None:
         """Return the requirement on a quantity, or ``None``.

@@ -1,7 +1,8 @@
 """Assemble parsed statements into a :class:`~timespec.model.Spec`.
 
 Reads headers and statements in order, resolves ``include`` files (relative to
-the including file, never outside the spec's root folder), merges ``defaults``
+the including file, never outside the project root: see
+``timespec.language.project``), merges ``defaults``
 into every block, applies the built-in defaults, and checks what can only be
 checked once a block is complete (a missing requirement, a supply outside the
 timer class's range, a pinned part the circuit does not have).
@@ -14,9 +15,27 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from timespec.errors import Pos, SpecError, SpecIncludeError, SpecValueError
+from timespec.errors import (
+    MAX_ERRORS,
+    Pos,
+    SpecEmptyError,
+    SpecError,
+    SpecErrors,
+    SpecIncludeError,
+    SpecValueError,
+    collect_errors,
+)
 from timespec.language.arguments import did_you_mean, error_at
-from timespec.language.parser import Entry, Header, Statement, parse_entries
+from timespec.language.parser import (
+    Broken,
+    Entry,
+    Header,
+    Statement,
+    parse_entries,
+    parse_recovering,
+)
+from timespec.language.project import PROJECT_FILE, Project, project_for
+from timespec.language.refs import Designation, check_unique
 from timespec.language.sources import (
     BOM,
     MAX_INCLUDE_DEPTH,
@@ -42,7 +61,7 @@ from timespec.model import (
 )
 from timespec.parts.devices import GATE_CLASSES, TIMER_CLASSES, TimerClass
 
-__all__ = ["DEFAULT_TIMER", "PART_REFS", "REQUIRED", "load", "parse"]
+__all__ = ["AS_BUILT_OPTIONAL", "DEFAULT_TIMER", "PART_REFS", "REQUIRED", "load", "parse"]
 
 #: Timer class used when neither the block nor the defaults name one.
 DEFAULT_TIMER = "bipolar"
@@ -57,6 +76,47 @@ REQUIRED: dict[str, tuple[tuple[str, ...], ...]] = {
     "relaxation": (("frequency", "period"),),
     "crystal": (("frequency",), ("load",), ("shunt",), ("motional",), ("esr",)),
 }
+
+#: The requirement a block may leave out when every part is pinned (``use``): it then
+#: describes a board as built, reported with its nominal, worst case and statistics.
+AS_BUILT_OPTIONAL: dict[str, tuple[str, ...]] = {
+    "oneshot": ("width",),
+    "astable": ("frequency", "period", "high", "low"),
+    "delay": ("delay",),
+    "relaxation": ("frequency", "period"),
+}
+
+#: Part sets that make a whole circuit, per kind (the astable: RA, RB, C or R, C).
+_WHOLE_CIRCUITS: dict[str, tuple[frozenset[str], ...]] = {
+    "oneshot": (frozenset({"R", "C"}),),
+    "astable": (frozenset({"RA", "RB", "C"}), frozenset({"R", "C"})),
+    "delay": (frozenset({"R", "C"}),),
+    "relaxation": (frozenset({"R", "C"}),),
+}
+
+
+def _class_hint(supply: Window, classes: Mapping[str, Any], what: str, current: str) -> str:
+    """Which other classes the supply window fits, for the hint of a supply error."""
+    fits = [
+        name
+        for name, cls in classes.items()
+        if name != current and cls.supply_min <= supply.low and supply.high <= cls.supply_max
+    ]
+    if fits:
+        return "use " + " or ".join(f"'{what} {name}'" for name in fits) + ", or change the supply"
+    spans = ", ".join(
+        f"{name} {cls.supply_min:g}…{cls.supply_max:g} V" for name, cls in classes.items()
+    )
+    return f"no {what} class takes this supply ({spans}): change the supply"
+
+
+def _all_pinned(sec: _Section) -> bool:
+    """Whether the block's own ``use`` pins every part of one whole circuit."""
+    if "use" not in sec.readings:
+        return False
+    refs = {part.ref for part in sec.readings["use"][0]}
+    return any(whole <= refs for whole in _WHOLE_CIRCUITS.get(sec.kind, ()))
+
 
 #: The parts each circuit has, by reference.
 PART_REFS: dict[str, tuple[str, ...]] = {
@@ -83,8 +143,10 @@ class _Section:
 class _Reads:
     """What one top spec has read: each file parsed once, and the include budget."""
 
-    parsed: dict[Path, list[Entry]] = field(default_factory=dict)
+    parsed: dict[Path, list[Entry | Broken]] = field(default_factory=dict)
     includes: int = 0
+    #: The project file that set the include root, or ``None`` (the top spec's folder).
+    project_file: Path | None = None
 
 
 def _walk(
@@ -94,7 +156,7 @@ def _walk(
     seen: tuple[Path, ...],
     shown: str | None = None,
     reads: _Reads | None = None,
-) -> list[Entry]:
+) -> list[Entry | Broken]:
     """Parse and splice ``include`` files in; an include ends the current block."""
     if shown is None and path is not None:
         shown = str(path)
@@ -103,25 +165,38 @@ def _walk(
     if key is not None and key in reads.parsed:
         entries = reads.parsed[key]
     else:
-        entries = parse_entries(text, shown)
+        entries = _read_entries(text, shown)
         if key is not None:
             reads.parsed[key] = entries
-    out: list[Entry] = []
+    out: list[Entry | Broken] = []
     for entry in entries:
         if isinstance(entry, Statement) and entry.keyword == "include":
-            reading = read_statement(entry, "include")
-            target: Text = reading.value
             out.append(Header("include", None, entry.pos, None))
-            out.extend(_include(target, path, root, seen, reads))
+            try:
+                reading = read_statement(entry, "include")
+                target: Text = reading.value
+                out.extend(_include(target, path, root, seen, reads))
+            except SpecError as exc:  # reported with the others; no block is finished
+                if reads.includes > MAX_INCLUDES:
+                    raise  # the budget stops runaway work: nothing more is read
+                out.append(Broken(exc, "include"))
             out.append(Header("include", None, entry.pos, None))
         else:
             out.append(entry)
     return out
 
 
+def _read_entries(text: str, shown: str | None) -> list[Entry | Broken]:
+    """The entries of one file; with a mistake, read again past every broken line."""
+    try:
+        return list(parse_entries(text, shown))
+    except SpecError:
+        return parse_recovering(text, shown)
+
+
 def _include(
     target: Text, path: Path | None, root: Path | None, seen: tuple[Path, ...], reads: _Reads
-) -> list[Entry]:
+) -> list[Entry | Broken]:
     if path is None or root is None:
         raise error_at(
             SpecIncludeError,
@@ -131,12 +206,7 @@ def _include(
         )
     wanted = (path.parent / target.text).resolve()
     if not wanted.is_relative_to(root):
-        raise error_at(
-            SpecIncludeError,
-            f"{target.text!r} lies outside the spec's folder {str(root)!r}",
-            target.pos,
-            "included files must sit in the folder of the top spec or below it",
-        )
+        raise _outside_root(target, wanted, root, reads.project_file)
     if wanted in seen:
         raise error_at(
             SpecIncludeError,
@@ -172,6 +242,25 @@ def _include(
     return _walk(text, _display_path(wanted), root, (*seen, wanted), reads=reads)
 
 
+def _outside_root(target: Text, wanted: Path, root: Path, project_file: Path | None) -> SpecError:
+    """The error for an include that leaves the root (symlinks resolved)."""
+    through = f" (it resolves to {str(wanted)!r})"
+    if project_file is None:
+        return error_at(
+            SpecIncludeError,
+            f"{target.text!r} lies outside the spec's folder {str(root)!r}{through}",
+            target.pos,
+            "included files must sit in the folder of the top spec or below it; to share "
+            f"files from a folder above, make it the project root with a {PROJECT_FILE} there",
+        )
+    return error_at(
+        SpecIncludeError,
+        f"{target.text!r} lies outside the project root {str(root)!r}{through}",
+        target.pos,
+        f"included files must sit under the project root, the folder of {str(project_file)!r}",
+    )
+
+
 def _display_path(path: Path) -> Path:
     try:
         return path.relative_to(Path.cwd())
@@ -179,39 +268,178 @@ def _display_path(path: Path) -> Path:
         return path
 
 
-def _assemble(entries: list[Entry], path: str | None) -> Spec:
+class _TooManyError(Exception):
+    """More mistakes than are reported at once were found."""
+
+
+@dataclass
+class _Found:
+    """The mistakes of one spec, each with its place in the entries (to sort them)."""
+
+    items: list[tuple[int, int, SpecError]] = field(default_factory=list)
+    keys: set[tuple[object, ...]] = field(default_factory=set)
+    more: bool = False
+
+    def add(self, place: int, err: SpecError) -> None:
+        """Keep a mistake (a repeat is dropped); past the bound, stop reading."""
+        for one in err.errors if isinstance(err, SpecErrors) else (err,):
+            key = (one.path, one.line, one.column, one.message)
+            if key in self.keys:
+                continue
+            if len(self.items) >= MAX_ERRORS:
+                self.more = True
+                raise _TooManyError
+            self.keys.add(key)
+            self.items.append((place, len(self.items), one))
+
+    def check(self) -> None:
+        """Raise every mistake kept, in the order of the text, as one exception."""
+        if self.items:
+            ordered = sorted(self.items, key=lambda item: item[:2])
+            raise collect_errors((err for _, _, err in ordered), truncated=self.more)
+
+
+def _assemble(entries: list[Entry | Broken], path: str | None) -> Spec:
+    """Build the spec, reporting every independent mistake at once.
+
+    A mistake in a block's header (or a statement outside any block) hides the
+    statements after it up to the next header; a block with a broken statement
+    is not checked as a whole (a missing requirement would only repeat it); when
+    a section that may hold the defaults is wrong, or an include fails, no block
+    is checked as a whole.  Every other statement and block is still checked.
+    """
+    found = _Found()
+    try:
+        return _assemble_into(entries, path, found)
+    except _TooManyError:
+        found.check()
+        raise  # pragma: no cover - check() raises when full
+
+
+def _assemble_into(entries: list[Entry | Broken], path: str | None, found: _Found) -> Spec:
     defaults = _Section("defaults", None, Pos(path, 1, 1, ""))
     fixture = _Section("fixture", None, Pos(path, 1, 1, ""))
-    sections: list[_Section] = []
+    sections: list[tuple[int, _Section]] = []
     current: _Section | None = None
+    dead = False  # the statements up to the next header are not checked
+    tainted: set[int] = set()  # id() of the sections with a broken statement
+    astray: set[int] = set()  # id() of the sections that hold another block's statements
     names: dict[str, Pos] = {}
-    for entry in entries:
+    for place, entry in enumerate(entries):
+        if isinstance(entry, Broken):
+            found.add(place, entry.error)
+            if entry.kind == "header":
+                current, dead = None, True
+                if _first_word(entry.error.source_line) not in BLOCK_KINDS:
+                    tainted.add(id(defaults))  # it may have been the defaults
+            elif entry.kind == "include":
+                tainted.add(id(defaults))  # the file may have held the defaults
+            elif current is not None:
+                tainted.add(id(current))
+            continue
         if isinstance(entry, Header):
+            current, dead = None, False
             if entry.kind == "include":
-                current = None
                 continue
-            current = _open(entry, defaults, fixture, names)
+            try:
+                current = _open(entry, defaults, fixture, names)
+            except SpecError as exc:
+                found.add(place, exc)
+                dead = True
+                if entry.kind not in BLOCK_KINDS or entry.name is None:
+                    tainted.add(id(defaults))  # it may have been meant as the defaults
+                continue
             if current is not defaults and current is not fixture:
-                sections.append(current)
+                sections.append((place, current))
+            continue
+        if dead:
             continue
         if current is None:
-            raise error_at(
-                SpecValueError,
-                f"statement '{entry.keyword}' stands outside any block",
-                entry.pos,
-                "start a block first, e.g. 'oneshot relay_hold:' or 'defaults:'",
+            found.add(
+                place,
+                error_at(
+                    SpecValueError,
+                    f"statement '{entry.keyword}' stands outside any block",
+                    entry.pos,
+                    "start a block first, e.g. 'oneshot relay_hold:' or 'defaults:'",
+                ),
             )
-        _add(current, entry)
-    if not sections:
-        raise SpecValueError(
+            dead = True
+            tainted.add(id(defaults))  # the missing header may have been 'defaults:'
+            continue
+        kw = KEYWORDS.get(entry.keyword)
+        # A statement of another kind of block, or one given twice, is the mark of a
+        # missing header; after the first, the others repeat it.
+        astray_mark = (kw is not None and current.kind not in kw.kinds) or any(
+            k in current.readings for k in (entry.keyword, f"req:{entry.keyword}")
+        )
+        if astray_mark and id(current) in astray:
+            continue
+        try:
+            _add(current, entry)
+        except SpecError as exc:
+            found.add(place, exc)
+            tainted.add(id(current))
+            if kw is None and entry.keyword in _OPENERS:
+                # a header without its ':' ("crystal mcu_clock"): its block's statements
+                # follow, and would each be a complaint about the wrong block
+                current, dead = None, True
+                if entry.keyword not in BLOCK_KINDS:
+                    tainted.add(id(defaults))
+            elif astray_mark:
+                astray.add(id(current))
+    if not sections and not found.items:
+        raise SpecEmptyError(
             "the spec has no blocks",
             path=path,
             line=1,
             column=1,
             hint="add a block, e.g. 'oneshot relay_hold: width 150 ms ±8% at supply 12 V ±5%'",
         )
-    blocks = tuple(_finish(sec, defaults) for sec in sections)
-    return Spec(blocks, path, _fixture(fixture))
+    blocks: list[Block] = []
+    if id(defaults) not in tainted:
+        for place, sec in sections:
+            if id(sec) in tainted:
+                continue
+            try:
+                blocks.append(_finish(sec, defaults))
+            except SpecError as exc:
+                found.add(place, exc)
+    end = len(entries)
+    try:
+        check_unique(
+            (sec.name or "", item)
+            for _, sec in sections
+            if id(sec) not in tainted
+            for item in _designations(sec)
+        )
+    except SpecError as exc:
+        found.add(end, exc)
+    spec_fixture: Fixture | None = None
+    if id(fixture) not in tainted:
+        try:
+            spec_fixture = _fixture(fixture)
+        except SpecError as exc:
+            found.add(end, exc)
+    found.check()
+    return Spec(tuple(blocks), path, spec_fixture)
+
+
+#: The words that open a block or section.
+_OPENERS = frozenset((*BLOCK_KINDS, "defaults", "fixture"))
+
+
+def _first_word(line: str | None) -> str:
+    words = (line or "").split()
+    return words[0].rstrip(":") if words else ""
+
+
+def _designations(sec: _Section) -> tuple[Designation, ...]:
+    """The items of a block's ``refs`` statement (none without one)."""
+    if "refs" not in sec.readings:
+        return ()
+    items: tuple[Designation, ...] = sec.readings["refs"][0]
+    return items
 
 
 def _open(entry: Header, defaults: _Section, fixture: _Section, names: dict[str, Pos]) -> _Section:
@@ -358,13 +586,16 @@ def _finish(sec: _Section, defaults: _Section) -> Block:
         if not any(
             f"req:{w}" in sec.readings or w in sec.readings or w in defaults.readings for w in group
         ):
+            as_built = group == AS_BUILT_OPTIONAL.get(sec.kind)
+            if as_built and _all_pinned(sec):
+                continue  # the circuit as built: characterised, nothing to fail
             need = " or ".join(f"'{w}'" for w in group)
             example = KEYWORDS[group[0]].example
+            hint = f"add one, e.g. '{example}'"
+            if as_built:
+                hint += ", or pin every part with 'use' to characterise a board as built"
             raise error_at(
-                SpecValueError,
-                f"{where} ({sec.kind}) has no {need} statement",
-                sec.pos,
-                f"add one, e.g. '{example}'",
+                SpecValueError, f"{where} ({sec.kind}) has no {need} statement", sec.pos, hint
             )
     # conditions
     supply_item = _get(sec, defaults, "supply")
@@ -400,7 +631,7 @@ def _finish(sec: _Section, defaults: _Section) -> Block:
                 f"the supply {supply.low:g}…{supply.high:g} V lies outside the {timer.name} "
                 f"timer class's range {timer.supply_min:g}…{timer.supply_max:g} V",
                 supply_pos,
-                "change the supply or the timer class ('timer cmos' runs from 2 V)",
+                _class_hint(supply, TIMER_CLASSES, "timer", timer.name),
             )
     gate = None
     # A relaxation oscillator is a gate (defaults apply); a delay block names the gate
@@ -416,7 +647,7 @@ def _finish(sec: _Section, defaults: _Section) -> Block:
                 f"the supply {supply.low:g}…{supply.high:g} V lies outside the {gate.name} "
                 f"gate class's range {gate.supply_min:g}…{gate.supply_max:g} V",
                 supply_pos,
-                "change the supply or the gate class",
+                _class_hint(supply, GATE_CLASSES, "gate", gate.name),
             )
 
     pinned: tuple[PinnedPart, ...] = ()
@@ -431,6 +662,17 @@ def _finish(sec: _Section, defaults: _Section) -> Block:
                     part.pos or use_pos,
                     f"its parts are {', '.join(refs)}",
                 )
+
+    roles = PART_REFS[sec.kind]
+    for item in _designations(sec):
+        if item.ref not in roles:
+            raise error_at(
+                SpecValueError,
+                f"a {sec.kind} circuit has no part {item.ref!r}",
+                item.pos,
+                f"its parts are {', '.join(roles)}",
+            )
+    designators = {item.ref: item.names for item in _designations(sec)}
 
     stats_fields: dict[str, Any] = {}
     for s in (defaults, sec):
@@ -471,6 +713,7 @@ def _finish(sec: _Section, defaults: _Section) -> Block:
             statistics=statistics,
             pos=sec.pos,
             positions=positions,
+            refs=designators,
         )
     except ValueError as exc:
         if isinstance(exc, SpecError):
@@ -505,23 +748,30 @@ def parse(text: str, path: str | None = None) -> Spec:
     return _assemble(entries, path)
 
 
-def load(path: str | Path) -> Spec:
+def load(path: str | Path, *, project: Project | None = None) -> Spec:
     """Read and parse a spec file (``include`` files are read relative to it).
 
     Parameters
     ----------
     path
         The spec file.
+    project
+        Its project (root and project-wide options); ``None`` finds it with
+        ``timespec.language.project.project_for``: the nearest folder upward
+        with a ``timespec.toml`` or a ``[tool.timespec]`` table in
+        ``pyproject.toml``, else the spec's own folder.
 
     Returns
     -------
     Spec
-        The blocks, validated.
+        The blocks, validated; a block whose spec sets no ``samples`` or
+        ``seed`` takes the project's.
 
     Raises
     ------
     SpecError
-        When the file cannot be read or has mistakes.
+        When the file cannot be read or has mistakes, when an ``include`` leaves
+        the project root, or when the project file has mistakes.
     """
     p = Path(path)
     try:
@@ -531,5 +781,30 @@ def load(path: str | Path) -> Spec:
     except SourceError as exc:
         raise SpecIncludeError(f"cannot read {str(p)!r}: {exc.reason}", path=str(p)) from None
     resolved = p.resolve()
-    entries = _walk(text, p, resolved.parent, (resolved,))
-    return _assemble(entries, str(p))
+    if project is None:
+        project = project_for(p)
+    reads = _Reads(project_file=project.file)
+    entries = _walk(text, p, project.root, (resolved,), reads=reads)
+    return _with_project(_assemble(entries, str(p)), project)
+
+
+def _with_project(spec: Spec, project: Project) -> Spec:
+    """Blocks whose spec sets no ``samples`` (``seed``) take the project's.
+
+    A ``samples`` or ``seed`` statement in a block or in ``defaults:`` leaves a
+    position in the block; only blocks without one take the project's value,
+    so the spec's own settings win over the project file.
+    """
+    if project.samples is None and project.seed is None:
+        return spec
+    import dataclasses
+
+    blocks = []
+    for block in spec.blocks:
+        stats = block.statistics
+        if project.samples is not None and "samples" not in block.positions:
+            stats = dataclasses.replace(stats, samples=project.samples)
+        if project.seed is not None and "seed" not in block.positions:
+            stats = dataclasses.replace(stats, seed=project.seed)
+        blocks.append(dataclasses.replace(block, statistics=stats))
+    return dataclasses.replace(spec, blocks=tuple(blocks))

@@ -173,6 +173,8 @@ BOUNDS: dict[tuple[str, str | None], Limit] = {
         -10000, 10000, "ppm", _PPM, "a crystal's stability over temperature"
     ),
     ("aging", "rate"): _l(-10000, 10000, "ppm/year", _PPM, "a crystal's ageing per year"),
+    ("aging", "ratio"): _l(-10000, 10000, "ppm", _PPM, "a crystal's ageing over a period"),
+    ("aging", "time"): _l(0, 100, "years", _YEAR, "an ageing period of up to 100 years"),
     ("accuracy", "ratio"): _l(-100000, 100000, "ppm", _PPM, "a required frequency accuracy"),
     ("clock", "frequency"): _l(1, 1e10, "Hz", 1.0, "a capture clock from 1 Hz to 10 GHz"),
     ("clock", "ratio"): _l(0, 10000, "ppm", _PPM, "a capture clock's tolerance"),
@@ -311,8 +313,8 @@ def check_bounds(stmt: Statement, block: str) -> None:
         At the first number that is not finite, is a negative tolerance, or
         lies outside its range; the hint names the allowed range.
     """
-    if stmt.keyword in ("samples", "seed", "include"):
-        return  # whole numbers with their own limits, or a file name
+    if stmt.keyword in ("samples", "seed", "include", "refs"):
+        return  # whole numbers with their own limits, a file name, or designators
     for group in stmt.args:
         for term in group:
             for q, side in quantities(term):

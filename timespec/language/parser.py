@@ -30,7 +30,14 @@ from lark.exceptions import (
     VisitError,
 )
 
-from timespec.errors import Pos, SpecError, SpecSyntaxError, SpecUnitError
+from timespec.errors import (
+    MAX_ERRORS,
+    Pos,
+    SpecError,
+    SpecSyntaxError,
+    SpecUnitError,
+    collect_errors,
+)
 from timespec.language.values import (
     Bound,
     Fraction,
@@ -43,10 +50,20 @@ from timespec.language.values import (
     Word,
 )
 from timespec.language.vocabulary import KEYWORDS
+from timespec.model import BLOCK_KINDS
 from timespec.parts.rkm import parse_rkm
 from timespec.units import unit_info
 
-__all__ = ["Entry", "Header", "Statement", "grammar_text", "parse_entries", "source_lines"]
+__all__ = [
+    "Broken",
+    "Entry",
+    "Header",
+    "Statement",
+    "grammar_text",
+    "parse_entries",
+    "parse_recovering",
+    "source_lines",
+]
 
 SECONDS_PER_YEAR = 365.25 * 24 * 3600.0
 
@@ -93,6 +110,29 @@ class Statement:
 
 
 Entry = Header | Statement
+
+
+@dataclass(frozen=True)
+class Broken:
+    """A line that could not be read, in place of its entries.
+
+    Only :func:`parse_recovering` gives these; the assembler reports the error
+    and keeps the mistake from causing others.
+
+    Attributes
+    ----------
+    error
+        The mistake, located.
+    kind
+        ``"header"`` when the line opens a block (its statements are then not
+        checked: they would only repeat the mistake), ``"statement"`` for a
+        statement line (the block it stands in is then not checked as a whole),
+        ``"include"`` for an include that could not be followed (then no block
+        is checked as a whole: the missing file may have held its defaults).
+    """
+
+    error: SpecError
+    kind: str
 
 
 def grammar_text() -> str:
@@ -529,6 +569,28 @@ def _convert_lark_error(exc: UnexpectedInput, text: str, path: str | None) -> Sp
     )
 
 
+def _prepare(text: str) -> str:
+    text = text.translate(_LOOKALIKES)
+    if text and not text.endswith("\n"):
+        text += "\n"
+    return text
+
+
+def _parse_once(text: str, original: str, path: str | None) -> list[Entry]:
+    """One parse of ``text``; errors are located in ``original`` (same lines and columns)."""
+    parser, _builder = _inline()
+    try:
+        entries: list[Entry] = parser.parse(text)  # type: ignore[assignment]
+    except UnexpectedInput as exc:
+        raise _convert_lark_error(exc, original, path) from None
+    except VisitError as exc:
+        inner = exc.orig_exc
+        if isinstance(inner, SpecError):
+            raise inner from None
+        raise SpecSyntaxError(f"could not read the spec: {inner}", path=path) from None
+    return entries
+
+
 def parse_entries(text: str, path: str | None = None) -> list[Entry]:
     """Parse spec text into headers and statements.
 
@@ -550,21 +612,136 @@ def parse_entries(text: str, path: str | None = None) -> list[Entry]:
         When the text does not follow the grammar.
     SpecUnitError
         When a unit is unknown or not one timespec uses.
+
+    Notes
+    -----
+    A text with several mistakes raises them all at once, as a
+    :class:`~timespec.errors.SpecErrors` that is also the first one's class
+    (see :func:`parse_recovering`); a text with one raises that one.
     """
-    text = text.translate(_LOOKALIKES)
-    if text and not text.endswith("\n"):
-        text += "\n"
+    found = parse_recovering(text, path)
+    broken = [e.error for e in found if isinstance(e, Broken)]
+    if broken:
+        raise collect_errors(broken[:MAX_ERRORS], truncated=len(broken) > MAX_ERRORS)
+    return [e for e in found if not isinstance(e, Broken)]
+
+
+#: A section or block word that opens a header line.
+_SECTIONS = frozenset((*BLOCK_KINDS, "defaults", "fixture"))
+_HEADER_FORM = re.compile(r"\s*([A-Za-z_][A-Za-z0-9_\-]*)(\s+[A-Za-z_][A-Za-z0-9_\-]*)?\s*:")
+_FIRST_WORD = re.compile(r"\s*([A-Za-z_][A-Za-z0-9_\-]*)")
+
+
+def _opens_block(line: str) -> bool:
+    """Whether a line that could not be read was meant as a block header.
+
+    It is when it starts with a block kind or section word (``delay`` is also a
+    statement: then only with a ``:``), or has the header form ``word [word]:``
+    with a first word that is no statement keyword.
+    """
+    code = line.split("#", 1)[0]
+    first = _FIRST_WORD.match(code)
+    if first is None:
+        return False
+    word = first.group(1)
+    if word in _SECTIONS and (word not in KEYWORDS or ":" in code):
+        return True
+    return _HEADER_FORM.match(code) is not None and word not in KEYWORDS
+
+
+def parse_recovering(text: str, path: str | None = None) -> list[Entry | Broken]:
+    """Parse spec text, reading past the lines that have mistakes.
+
+    Parameters
+    ----------
+    text
+        The spec text.
+    path
+        The file it came from, used in error messages.
+
+    Returns
+    -------
+    list of Header, Statement or Broken
+        The entries in the order written, with a :class:`Broken` in place of
+        each line that could not be read.  Reading stops after one more than
+        :data:`~timespec.errors.MAX_ERRORS` broken lines (so a caller knows that
+        more followed); the entries before the last broken line are kept.
+
+    Notes
+    -----
+    A statement is one line and the grammar is a list of lines, so a mistake
+    stays on its line and the lines after it parse on their own.  The text is
+    parsed whole (the only parse of a text without mistakes); when line *L*
+    fails, the lines before it are parsed (they form a complete prefix) and
+    parsing goes on from line *L* + 1, with *L* newlines in front so that every
+    line and column keeps its place.  Each pass starts past the last mistake,
+    so the loop ends, and the result is deterministic; all of it costs about
+    two parses of the file however many mistakes it has.
+    """
+    global _LAST_BROKEN
+    text = _prepare(text)
+    last = _LAST_BROKEN
+    if last is not None and last[0] == text and last[1] == path:
+        return list(last[2])
     lines = source_lines(text)
-    parser, builder = _inline()
+    broken: list[Broken] = []
+    entries: list[Entry] = []
+    _parser, builder = _inline()
     with _LOCK:
         builder.reset(path, lines)
+        _read_lines(text, lines, path, 1, len(lines), entries, broken)
+    if not broken:
+        return list(entries)
+    merged = _merge(entries, broken)
+    # A text with mistakes is often read twice in a row (parse_entries raises, then
+    # the assembler reads past the mistakes): the second read is this copy.
+    _LAST_BROKEN = (text, path, tuple(merged))
+    return merged
+
+
+_LAST_BROKEN: tuple[str, str | None, tuple[Entry | Broken, ...]] | None = None
+
+
+def _segment(lines: list[str], first: int, last: int) -> str:
+    """Lines ``first`` to ``last`` (1-based, inclusive), in their places."""
+    return "\n" * (first - 1) + "".join(ln + "\n" for ln in lines[first - 1 : last])
+
+
+def _read_lines(
+    text: str,
+    lines: list[str],
+    path: str | None,
+    first: int,
+    last: int,
+    entries: list[Entry],
+    broken: list[Broken],
+) -> None:
+    """Parse lines ``first`` to ``last`` into ``entries``, a mistake into ``broken``."""
+    while first <= last and len(broken) <= MAX_ERRORS:
         try:
-            entries: list[Entry] = parser.parse(text)  # type: ignore[assignment]
-        except UnexpectedInput as exc:
-            raise _convert_lark_error(exc, text, path) from None
-        except VisitError as exc:
-            inner = exc.orig_exc
-            if isinstance(inner, SpecError):
-                raise inner from None
-            raise SpecSyntaxError(f"could not read the spec: {inner}", path=path) from None
-    return entries
+            entries.extend(_parse_once(_segment(lines, first, last), text, path))
+            return
+        except SpecError as exc:
+            line = exc.line
+            if line is None or not first <= line <= last:
+                # not on a line of this stretch: nothing to read past
+                broken.append(Broken(exc, "statement"))
+                return
+            if line > first:
+                _read_lines(text, lines, path, first, line - 1, entries, broken)
+            broken.append(Broken(exc, "header" if _opens_block(lines[line - 1]) else "statement"))
+            first = line + 1
+
+
+def _merge(entries: list[Entry], broken: list[Broken]) -> list[Entry | Broken]:
+    """The entries with each broken line put in its place, by line."""
+    marks = sorted(broken, key=lambda b: b.error.line or 0)
+    out: list[Entry | Broken] = []
+    i = 0
+    for entry in entries:
+        while i < len(marks) and (marks[i].error.line or 0) < entry.pos.line:
+            out.append(marks[i])
+            i += 1
+        out.append(entry)
+    out.extend(marks[i:])
+    return out

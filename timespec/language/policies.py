@@ -31,7 +31,7 @@ from timespec.language.arguments import (
     window_of,
 )
 from timespec.language.parser import Statement
-from timespec.language.values import Quantity, Range, Term, Tolerance, Word
+from timespec.language.values import Fraction, Quantity, Range, Term, Tolerance, Word
 from timespec.model import PinnedPart
 from timespec.parts import dielectrics, series
 from timespec.parts.devices import GATE_CLASSES, TIMER_CLASSES
@@ -89,10 +89,32 @@ def _policy_items(stmt: Statement, part: str, terms: Sequence[Term]) -> dict[str
         fields[key] = value
 
     rated_word: Word | None = None
+    leak_word: Word | None = None
+    floor_word: Word | None = None
     for term in terms:
         if rated_word is not None:
             put("rated_voltage", _rating(rated_word, term), rated_word.pos)
             rated_word = None
+            continue
+        if floor_word is not None:
+            k = fields["leakage"][0]
+            fields["leakage"] = (k, _leak_current(floor_word, term))
+            floor_word = None
+            continue
+        if leak_word is not None:
+            put("leakage", _leak_rating(leak_word, term), leak_word.pos)
+            leak_word = None
+            continue
+        if (
+            isinstance(term, Word)
+            and term.text.lower() == "or"
+            and "leakage" in fields
+            and fields["leakage"][1] == 0.0
+        ):
+            floor_word = term
+            continue
+        if isinstance(term, Word) and term.text.lower() == "leakage" and not is_res:
+            leak_word = term
             continue
         if isinstance(term, Word) and term.text.lower() == "rated":
             if is_res:
@@ -204,7 +226,52 @@ def _policy_items(stmt: Statement, part: str, terms: Sequence[Term]) -> dict[str
             rated_word.pos,
             "write the capacitor's rated DC voltage, e.g. rated 25 V",
         )
+    for word in (leak_word, floor_word):
+        if word is not None:
+            raise error_at(SpecValueError, f"'{word.text}' needs a value after it", word.pos, _LEAK)
     return fields
+
+
+_LEAK = "write the datasheet's leakage rating, e.g. leakage 0.01 of CV or 3 uA, or leakage 5 uA"
+
+
+def _leak_current(word: Word, term: Term) -> float:
+    """A leakage current after ``leakage`` or ``or``: positive, finite, in amperes."""
+    if not (isinstance(term, Quantity) and term.kind == "current"):
+        raise error_at(
+            SpecValueError,
+            f"'{word.text}' here needs a current, not {type_name(term)}",
+            term.pos,
+            _LEAK,
+        )
+    if not (math.isfinite(term.value) and 0 < term.value <= 1.0):
+        raise error_at(
+            SpecValueError, f"a leakage rating of {term.text!r} makes no sense", term.pos, _LEAK
+        )
+    return term.value
+
+
+def _leak_rating(word: Word, term: Term) -> tuple[float, float]:
+    """``leakage 0.01 of CV`` (the k·C·V rule: µA per µF and volt) or ``leakage 5 uA``."""
+    if isinstance(term, Fraction):
+        inner = term.inner
+        if term.of.upper() != "CV" or not isinstance(inner, Quantity) or inner.kind is not None:
+            raise error_at(
+                SpecValueError,
+                f"a leakage rule is written 'k of CV', not {term.of!r}",
+                term.pos,
+                _LEAK,
+            )
+        k = inner.value
+        if not (math.isfinite(k) and 0 < k <= 10.0):
+            raise error_at(
+                SpecValueError,
+                f"a leakage constant of {k:g} makes no sense (0…10)",
+                term.pos,
+                _LEAK,
+            )
+        return (k, 0.0)
+    return (0.0, _leak_current(word, term))
 
 
 def _rating(word: Word, term: Term) -> float:
@@ -354,6 +421,7 @@ def read_use(stmt: Statement) -> Reading:
                     dielectric=fields.get("dielectric"),
                     pos=ref.pos,
                     rated_voltage=fields.get("rated_voltage"),
+                    leakage=fields.get("leakage"),
                 )
             )
         except ValueError as exc:

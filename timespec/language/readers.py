@@ -37,6 +37,7 @@ from timespec.language.values import Bound, Fraction, Quantity, Range, Text, Tol
 from timespec.model import Requirement, Window
 
 __all__ = [
+    "read_ageing",
     "read_ambient",
     "read_choice",
     "read_clock",
@@ -222,7 +223,7 @@ def read_span(kinds: Sequence[str], *, fraction_of: str | None = None) -> Reader
     return read
 
 
-def read_level(kinds: Sequence[str], *, positive: bool = True) -> Reader:
+def read_level(kinds: Sequence[str], *, positive: bool = True, hint: str | None = None) -> Reader:
     """A reader of one plain value.
 
     Parameters
@@ -231,6 +232,9 @@ def read_level(kinds: Sequence[str], *, positive: bool = True) -> Reader:
         The kinds it may be written in.
     positive
         Whether it must be above zero.
+    hint
+        The hint of a value given in the wrong form, when the keyword's general
+        example would mislead (a crystal's ``frequency`` is not a requirement).
 
     Returns
     -------
@@ -239,7 +243,20 @@ def read_level(kinds: Sequence[str], *, positive: bool = True) -> Reader:
     """
 
     def read(stmt: Statement) -> Reading:
-        q = quantity_of(single_term(stmt, KIND_NAMES.get(kinds[0], "a value")), kinds, stmt.keyword)
+        try:
+            term = single_term(stmt, KIND_NAMES.get(kinds[0], "a value"))
+            q = quantity_of(term, kinds, stmt.keyword)
+        except SpecValueError as exc:
+            if hint is None:
+                raise
+            raise SpecValueError(
+                exc.message,
+                path=exc.path,
+                line=exc.line,
+                column=exc.column,
+                source_line=exc.source_line,
+                hint=hint,
+            ) from None
         if positive:
             positive_value(q, stmt.keyword)
         return Reading("setting", q.value)
@@ -316,6 +333,41 @@ def read_ppm(*, rate: bool = False, requirement: str | None = None) -> Reader:
         return Reading("setting", win)
 
     return read
+
+
+def read_ageing(stmt: Statement) -> Reading:
+    """A crystal's ageing: a rate (``±3 ppm/year``) or a total over a period
+    (``±10 ppm over 10 years``), as datasheets give either.
+
+    Parameters
+    ----------
+    stmt
+        The ``aging`` statement.
+
+    Returns
+    -------
+    Reading
+        A ``"setting"`` reading holding ``aging`` (the band, a fraction; per year
+        for a rate) and ``aging_period`` (s; 0 for a rate).
+    """
+    args = stmt.args
+    word = args[0][1] if len(args) == 1 and len(args[0]) == 3 else None
+    if isinstance(word, Word):
+        band_term, _, period_term = args[0]
+        if word.text.lower() != "over":
+            raise error_at(
+                SpecValueError,
+                f"after the ageing band comes 'over <period>', not {word.text!r}",
+                word.pos,
+                "e.g. 'aging ±10 ppm over 10 years' or 'aging ±3 ppm/year'",
+            )
+        band = read_ppm()(Statement(stmt.keyword, ((band_term,),), stmt.pos)).value
+        period = quantity_of(period_term, ["time"], stmt.keyword)
+        return Reading(
+            "setting", {"aging": band, "aging_period": positive_value(period, stmt.keyword)}
+        )
+    band = read_ppm(rate=True)(stmt).value
+    return Reading("setting", {"aging": band, "aging_period": 0.0})
 
 
 def read_trigger(stmt: Statement) -> Reading:

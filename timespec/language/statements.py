@@ -14,6 +14,7 @@ from timespec.language.bounds import check_bounds
 from timespec.language.parser import Statement
 from timespec.language.policies import read_gate, read_policy, read_timer, read_use
 from timespec.language.readers import (
+    read_ageing,
     read_ambient,
     read_choice,
     read_clock,
@@ -29,6 +30,7 @@ from timespec.language.readers import (
     read_supply,
     read_trigger,
 )
+from timespec.language.refs import read_refs
 from timespec.model import MAX_SAMPLES, MAX_SEED
 
 __all__ = ["READERS", "read_statement"]
@@ -46,6 +48,7 @@ READERS: dict[str, Reader] = {
     "spread": read_spread,
     "timer": read_timer,
     "use": read_use,
+    "refs": read_refs,
     "width": read_requirement("width", ["time"]),
     "trigger": read_trigger,
     "control": read_span(["voltage"]),
@@ -72,7 +75,7 @@ READERS: dict[str, Reader] = {
     "swing": read_level(["voltage"]),
     "tolerance": read_ppm(),
     "stability": read_ppm(),
-    "aging": read_ppm(rate=True),
+    "aging": read_ageing,
     "accuracy": read_ppm(requirement="accuracy"),
     "clock": read_clock,
     "uncertainty": read_level(["time"], positive=False),
@@ -83,7 +86,11 @@ READERS: dict[str, Reader] = {
 
 #: Keywords whose meaning depends on the block kind.
 _BY_KIND: dict[tuple[str, str], Reader] = {
-    ("crystal", "frequency"): read_level(["frequency"]),
+    ("crystal", "frequency"): read_level(
+        ["frequency"],
+        hint="a crystal's frequency is its nominal value, e.g. 'frequency 16 MHz'; its "
+        "calibration goes in 'tolerance ±20 ppm' and the required total in 'accuracy ±80 ppm'",
+    ),
 }
 
 

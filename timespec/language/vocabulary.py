@@ -93,6 +93,12 @@ _TABLE: list[Keyword] = [
         "use R 150k 1%, C 1u X7R 10%",
         "pin parts: check them instead of choosing",
     ),
+    _kw(
+        "refs",
+        {"oneshot", "astable", "delay", "relaxation", "crystal"},
+        "refs R R12, C C7",
+        "board reference designators of the parts, for the bill of materials",
+    ),
     _kw("width", {"oneshot"}, "width 150 ms ±8%", "required output pulse width"),
     _kw(
         "trigger",
@@ -171,7 +177,12 @@ _TABLE: list[Keyword] = [
         "stability ±20 ppm",
         "crystal frequency change over the ambient range",
     ),
-    _kw("aging", {"crystal"}, "aging ±3 ppm/year", "crystal ageing per year"),
+    _kw(
+        "aging",
+        {"crystal"},
+        "aging ±3 ppm/year",
+        "crystal ageing per year, or a total over a period: ±10 ppm over 10 years",
+    ),
     _kw("accuracy", {"crystal"}, "accuracy ±50 ppm", "required total frequency error over life"),
     _kw(
         "clock",
