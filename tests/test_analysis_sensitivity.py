@@ -144,7 +144,8 @@ def test_json_keeps_old_keys_and_adds_the_new() -> None:
     spec = parse(TEMPCO)
     blk = analyse_block(solve_block(spec.blocks[0]), samples=8000, seed=1)
     doc = result_to_dict(Result(spec=spec, blocks=(blk,)))
-    assert (doc["format_version"], doc["format_minor"]) == (FORMAT_VERSION, FORMAT_MINOR) == (1, 1)
+    # 1.2 (designators, issue 13) keeps every key of 1.1
+    assert (doc["format_version"], doc["format_minor"]) == (FORMAT_VERSION, FORMAT_MINOR) == (1, 2)
     b = doc["blocks"][0]
     row = next(r for r in b["contributors"]["width"] if r["name"] == "R.tc")
     assert {"name", "label", "share", "sensitivity"} <= row.keys()

@@ -238,9 +238,12 @@ def test_cells_of_a_solved_spec(solved: Result) -> None:
     assert relay[3] == ("width 15 ms ±12 %",)
     assert relay[4][0].startswith("width ") and relay[4][0].endswith(" ms")
     fan = rows["fan_kick"]
+    # IEC 60063: a pinned part is labelled with the series of its value and tolerance;
+    # 100n at 5 % is E24 (1.0 is in every series, 5 % is the E24 tolerance), 20k at 1 %
+    # is E96 (2.00 is in E96, 1 % is the E96 tolerance); issue 13
     assert fan[2] == (
         "R 20k E96 ±1 % 100 ppm/K, pinned",
-        "C 100n E12 ±5 % C0G, pinned",
+        "C 100n E24 ±5 % C0G, pinned",
     )
     assert fan[3] == ("width 2 ms to 2.6 ms",)
     assert fan[6][0].endswith("(checked)")

@@ -99,8 +99,8 @@ def standard_uncertainty(factor: Factor) -> float:
     Notes
     -----
     The truncated-normal value matches what :func:`timespec.analysis.monte_carlo`
-    samples, so the two methods agree; see :func:`timespec.analysis.stats.
-    truncated_normal_std` for the formula.
+    samples, so the two methods agree; see
+    :func:`timespec.analysis.stats.truncated_normal_std` for the formula.
 
     References
     ----------

@@ -86,7 +86,7 @@ def grid_size(factors: Sequence[Factor], *, interior_points: int = 9) -> int:
     int
         ``2**m * interior_points**k`` for ``m`` monotone and ``k`` other varying factors,
         where the factors that act through one effective value
-        (``Factor.through``) count as one monotone factor.
+        (``through`` of :class:`~timespec.analysis.Factor`) count as one monotone factor.
     """
     facs = [f for f in factors if is_varying(f)]
     known = {f.name: f.nominal for f in factors if not is_varying(f)}
@@ -539,7 +539,7 @@ def corner_label(at: Mapping[str, float], factors: Sequence[Factor]) -> str:
     Parameters
     ----------
     at : mapping of str to float
-        Factor values, as in ``Extremes.low_at``.
+        Factor values, as in :attr:`Extremes.low_at`.
     factors : sequence of Factor
         The factors, in the order they should be listed.
 

@@ -318,8 +318,10 @@ def limits_to_dict(limits: list[Limit]) -> dict[str, object]:
     Returns
     -------
     dict
-        ``{"format": "timespec-limits", "format_version": 1, "limits": [...]}``;
-        times in seconds, counts as integers, open sides and infinities as ``null``.
+        ``{"format": "timespec-limits", "format_version": 1, "format_minor": 1,
+        "limits": [...]}``; times in seconds, counts as integers, open sides and
+        infinities as ``null`` (the layout and its schema: the docs page *JSON
+        documents*; ``format_minor`` was added in 1.1).
     """
 
     def num(x: float) -> float | None:
@@ -328,6 +330,7 @@ def limits_to_dict(limits: list[Limit]) -> dict[str, object]:
     return {
         "format": "timespec-limits",
         "format_version": 1,
+        "format_minor": 1,
         "limits": [
             {
                 "block": lim.block,

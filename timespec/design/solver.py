@@ -36,6 +36,7 @@ from timespec.analysis import (
     worst_case,
     worst_case_many,
 )
+from timespec.design.reach import range_cause
 from timespec.design.result import BlockResult, Candidate, OutputResult, Result
 from timespec.errors import SpecValueError
 from timespec.families import family
@@ -362,7 +363,8 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
             mode=mode,
             best=None,
             notes=(
-                "no standard value in the allowed ranges comes near the requirement; "
+                range_cause(block)
+                or "no standard value in the allowed ranges comes near the requirement; "
                 "widen the resistor or capacitor range",
                 *_condition_notes(block),
             ),

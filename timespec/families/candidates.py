@@ -57,7 +57,7 @@ def resistor_part(
             kind="resistance",
             value=pinned.value,
             tolerance=pinned.tolerance if pinned.tolerance is not None else policy.tolerance,
-            series=pinned.series or _member_series(pinned.value, policy.series),
+            series=pinned.series or _pinned_series(pinned, policy.tolerance),
             tempco_ppm=pinned.tempco_ppm if pinned.tempco_ppm is not None else policy.tempco_ppm,
             pinned=True,
             ageing=policy.ageing,
@@ -100,7 +100,7 @@ def capacitor_part(
             kind="capacitance",
             value=pinned.value,
             tolerance=pinned.tolerance if pinned.tolerance is not None else policy.tolerance,
-            series=pinned.series or _member_series(pinned.value, policy.series),
+            series=pinned.series or _pinned_series(pinned, policy.tolerance),
             dielectric=pinned.dielectric or policy.dielectric,
             pinned=True,
             ageing=policy.ageing,
@@ -116,12 +116,13 @@ def capacitor_part(
     )
 
 
-def _member_series(value: float, preferred: str) -> str | None:
-    """The coarsest series that holds a value (the policy's first), or ``None``."""
-    for name in (preferred, *series.SERIES_NAMES):
-        if series.is_member(name, value, rel=1e-6):
-            return name
-    return None
+def _pinned_series(pinned: PinnedPart, policy_tolerance: float) -> str | None:
+    """The series a pinned part belongs to by its value and tolerance (IEC 60063), or ``None``.
+
+    See :func:`timespec.parts.series.part_series`: ``470k 5%`` is E24, not E3.
+    """
+    tolerance = pinned.tolerance if pinned.tolerance is not None else policy_tolerance
+    return series.part_series(pinned.value, tolerance)
 
 
 def candidate_values(series_name: str, low: float, high: float) -> FloatArray:

@@ -25,12 +25,14 @@ from timespec.parts.rkm import format_rkm
 
 __all__ = [
     "CLASS2_RATING_FACTOR",
+    "ELECTROLYTIC_LEAKAGE",
     "ELECTROLYTIC_RATING_FACTOR",
     "HOURS_PER_YEAR",
     "Class2Losses",
     "capacitor_leakage",
     "class2_losses",
     "dielectric_findings",
+    "leakage_rating",
     "node_leakage",
     "rated_voltage",
 ]
@@ -158,13 +160,16 @@ def capacitor_leakage(block: Block, part: Part) -> float:
     Returns
     -------
     float
-        A.  For aluminium electrolytics ``max(0.01·C·V_rated, 3 µA)`` with C in µF
-        and V_rated in V giving µA (the usual leakage rating of the datasheet
-        class), doubled for hot operation above 60 °C (leakage rises 2–3× when
-        hot); the rated voltage is taken as :data:`ELECTROLYTIC_RATING_FACTOR`
-        times the highest supply.  Zero for ceramic and film capacitors, whose
-        leakage is negligible at timing resistances (state board leakage with
-        the ``leakage`` statement).
+        A.  The stated rating (``leakage 0.01 of CV or 3 uA`` or ``leakage 5 uA`` on
+        the pinned part or the capacitor policy, :func:`leakage_rating`), else for
+        aluminium electrolytics :data:`ELECTROLYTIC_LEAKAGE`:
+        ``max(k·C·V_rated, floor)`` with C in µF and V_rated in V giving µA,
+        doubled for hot operation above 60 °C (leakage rises 2–3× when hot).
+        The rated voltage is the stated one (``rated 25 V``), else
+        :data:`ELECTROLYTIC_RATING_FACTOR` times the highest supply.  Zero for
+        ceramic and film capacitors with no stated rating, whose leakage is
+        negligible at timing resistances (state board leakage with the
+        ``leakage`` statement).
 
     References
     ----------
@@ -175,13 +180,45 @@ def capacitor_leakage(block: Block, part: Part) -> float:
     if part.dielectric is None:
         return 0.0
     d = dielectrics.dielectric(part.dielectric)
-    if d.family != "electrolytic":
-        return 0.0
-    rated = ELECTROLYTIC_RATING_FACTOR * block.conditions.supply.high
-    amps = max(0.01 * (part.value * 1e6) * rated, 3.0) * 1e-6
+    rating = leakage_rating(block, part)
+    if rating is None:
+        if d.family != "electrolytic":
+            return 0.0
+        rating = ELECTROLYTIC_LEAKAGE
+    k, floor = rating
+    rated, stated = rated_voltage(block, part)
+    if not stated:
+        rated = ELECTROLYTIC_RATING_FACTOR * block.conditions.supply.high
+    amps = max(k * (part.value * 1e6) * rated * 1e-6, floor)
     if block.conditions.ambient_high > 60.0:
         amps *= 2.0
     return amps
+
+
+#: The datasheet class's leakage rating of aluminium electrolytics: 0.01·C·V µA (C in
+#: µF, V in V) or 3 µA, whichever is greater.
+ELECTROLYTIC_LEAKAGE = (0.01, 3e-6)
+
+
+def leakage_rating(block: Block, part: Part) -> tuple[float, float] | None:
+    """The leakage rating ``(k, floor)`` the spec states for a capacitor, or ``None``.
+
+    Parameters
+    ----------
+    block
+        The block (policy and pinned parts).
+    part
+        A capacitor.
+
+    Returns
+    -------
+    tuple of float or None
+        The pinned part's ``leakage`` if given, else the capacitor policy's.
+    """
+    pinned = block.pinned_part(part.ref) if part.pinned else None
+    if pinned is not None and pinned.leakage is not None:
+        return pinned.leakage
+    return block.capacitors.leakage
 
 
 def node_leakage(block: Block, design: Design, ref: str = "C") -> float:

@@ -72,7 +72,7 @@ def part_factors(block: Block, part: Part) -> list[Factor]:
 
     Every factor but the value reaches the model only through :func:`apply_part`
     and says so (``through`` the part's reference, the tempco turning at 25 °C), so
-    the worst-case search ties them (``Factor.through``).
+    the worst-case search ties them (``through`` of :class:`timespec.analysis.Factor`).
     """
     dist, sigmas = _tol_distribution(block)
     ref = part.ref

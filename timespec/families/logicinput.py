@@ -174,7 +174,7 @@ def stray_factor(gate: GateClass | None, adds_to: str = "C") -> Factor:
         The gate class, or ``None`` for a generic CMOS logic input.
     adds_to
         The timing capacitor's reference: the model adds the stray to that part's
-        value and uses it nowhere else (:attr:`~timespec.analysis.Factor.through`).
+        value and uses it nowhere else (``through`` of :class:`~timespec.analysis.Factor`).
 
     Returns
     -------

@@ -196,13 +196,13 @@ class OneShot:
         :func:`~timespec.families.candidates.neighbour_parts`).  If R is pinned, the
         same is done for C.
         """
-        req = block.requirement("width")
-        assert req is not None
-        goal = target(req.window)
         rp, cp = block.resistors, block.capacitors
         pin_r, pin_c = block.pinned_part("R"), block.pinned_part("C")
         if pin_r is not None and pin_c is not None:
             return [Design((resistor_part("R", 0, rp, pin_r), capacitor_part("C", 0, cp, pin_c)))]
+        req = block.requirement("width")
+        assert req is not None
+        goal = target(req.window)
         model = self.evaluate(block, "")
         probe = Design((resistor_part("R", 1.0, rp), capacitor_part("C", 1.0, cp)))
         nominal = {f.name: np.array([f.nominal]) for f in self.factors(block, probe)}

@@ -50,7 +50,7 @@ def node_stray_factor(timer: TimerClass, adds_to: str = "C") -> Factor:
         The timer class.
     adds_to
         The timing capacitor's reference: the model adds the stray to that part's
-        value and uses it nowhere else (:attr:`~timespec.analysis.Factor.through`).
+        value and uses it nowhere else (``through`` of :class:`~timespec.analysis.Factor`).
 
     Returns
     -------

@@ -236,7 +236,7 @@ class TimerClass:
         Returns
         -------
         tuple of float
-            ``t_pd``; for the CMOS class below 5 V its top grows as
+            :attr:`t_pd`; for the CMOS class below 5 V its top grows as
             ``(5 V / supply_low)²`` (CMOS delay grows about as the square of the
             drive lost at a lower supply [Mem]); the bipolar class is used from
             4.5 V only and is taken as quoted.
@@ -253,7 +253,7 @@ class TimerClass:
         Returns
         -------
         Held
-            The saturation voltage is specified at ``r_on_test_current``;
+            The saturation voltage is specified at :attr:`r_on_test_current`;
             read as a resistance it holds up to that current (a transistor's
             saturation voltage grows faster than linearly above it).  [DS]
         """
@@ -406,12 +406,12 @@ class GateClass:
         Input leakage bound, A (either sign).  [DS]
     f_max
         Highest frequency the class is used at as an RC oscillator, Hz, at
-        ``quoted_supply``.  [Mem]
+        :attr:`quoted_supply`.  [Mem]
     r_min, r_max
         Usable feedback resistor range, Ω.  [CP]
     t_pd
         Propagation delay band ``(min, max)`` input to output, s, at
-        ``quoted_supply`` over the class's temperature range.  [DS/Mem]
+        :attr:`quoted_supply` over the class's temperature range.  [DS/Mem]
     c_input
         Input (pin) capacitance band ``(min, max)``, F.  [DS]
     quoted_supply
@@ -453,7 +453,7 @@ class GateClass:
         Returns
         -------
         float
-            ``1`` inside ``speed_held``; below it ``(V_low_held / supply_low)²``.
+            ``1`` inside :attr:`speed_held`; below it ``(V_low_held / supply_low)²``.
 
         Notes
         -----

@@ -251,8 +251,8 @@ _CLASS2_NOTES: Final = (
     "not for precise timing"
 )
 
-# Typical resistor temperature coefficients, ppm/K, magnitude (datasheet class, from memory):
-# thick film 100 (some grades 200), thin film 25 (some grades 50), metal film 50.
+#: Typical resistor temperature coefficients, ppm/K, magnitude (datasheet class, from memory):
+#: thick film 100 (some grades 200), thin film 25 (some grades 50), metal film 50.
 RESISTOR_TCR_PPM: Final[Mapping[str, float]] = MappingProxyType(
     {"thick film": 100.0, "thin film": 25.0, "metal film": 50.0}
 )

@@ -34,6 +34,7 @@ FloatArray = npt.NDArray[np.float64]
 # Relative slack on the bounds, as in timespec.parts.series.
 _DEFAULT_REL: Final[float] = 1e-9
 
+#: One row of a pair table: the two values, ``"series"`` or ``"parallel"``, the result.
 PAIR_DTYPE: Final[np.dtype[np.void]] = np.dtype(
     [("a", np.float64), ("b", np.float64), ("how", "U8"), ("value", np.float64)]
 )

@@ -96,7 +96,7 @@ _FORMAT_LETTERS: Final[Mapping[str, tuple[tuple[int, str], ...]]] = MappingProxy
     }
 )
 
-# IEC 60062 tolerance letters -> signed relative bounds (low, high).
+#: IEC 60062 tolerance letters -> signed relative bounds (low, high).
 TOLERANCE_LETTERS: Final[Mapping[str, tuple[float, float]]] = MappingProxyType(
     {
         "B": (-0.001, 0.001),

@@ -31,12 +31,14 @@ __all__ = [
     "nearest_many",
     "neighbours",
     "neighbours_many",
+    "part_series",
     "usual_tolerance",
     "values_between",
 ]
 
 FloatArray = npt.NDArray[np.float64]
 
+#: The IEC 60063 series names, coarsest first.
 SERIES_NAMES: Final[tuple[str, ...]] = ("E3", "E6", "E12", "E24", "E48", "E96", "E192")
 
 # IEC 60063: the two-digit series are fixed lists; several values (2.7, 3.0, 3.3, 3.6, 3.9,
@@ -528,3 +530,56 @@ def is_member(name: str, x: float, rel: float = _DEFAULT_REL) -> bool:
     """
     below, above = neighbours(name, x, rel=rel)
     return below == above
+
+
+def part_series(value: float, tolerance: float, *, rel: float = 1e-6) -> str | None:
+    """The series a part of this value and tolerance belongs to, or ``None`` for none.
+
+    Parameters
+    ----------
+    value
+        The part's value in SI units (finite, positive).
+    tolerance
+        Its relative tolerance (0.05 for ±5 %).
+    rel
+        Relative slack when matching the value to a standard value.
+
+    Returns
+    -------
+    str or None
+        Of the series that hold the value, the finest one whose own tolerance is no
+        tighter than the part's; when every series that holds the value asks for a
+        tighter part, the coarsest of them; ``None`` when no series holds it.
+
+    Raises
+    ------
+    ValueError
+        If ``value`` is not finite and positive.
+
+    Notes
+    -----
+    IEC 60063 pairs each series with a tolerance (E6 20 %, E12 10 %, E24 5 %, E48 2 %,
+    E96 1 %, E192 0.5 % and tighter; E3 above 20 %): parts of that tolerance cover the
+    decade without gaps.  A part at least as tight as a series' tolerance is a part of
+    that series, so ``470k 5%`` is an E24 part (470 is in E3 to E24, and 5 % is the E24
+    tolerance), ``1k 5%`` is E24 too (1.0 is in every series), ``1k 1%`` is E96,
+    ``2k2 1%`` is E24 (2.2 is in no three-digit series; tighter parts of E24 values are
+    common practice) and ``1k 30%`` is E3.  A value found only in series meant for
+    tighter parts (``4k75 5%``) is labelled with the coarsest series that holds it
+    (E96): the value comes from that series, and its tolerance, shown beside it, says
+    the part is looser than the series asks.
+
+    References
+    ----------
+    IEC 60063:2015, preferred number series and the tolerance associated with each.
+    """
+    members = [name for name in SERIES_NAMES if is_member(name, value, rel=rel)]
+    if not members:
+        return None
+    fits = [
+        name
+        for name in members
+        # E3 stands for tolerances above 20 %: any part fits its grid
+        if name == "E3" or tolerance <= _USUAL_TOLERANCE[name] * (1.0 + 1e-9)
+    ]
+    return fits[-1] if fits else members[0]

@@ -15,6 +15,7 @@ from timespec.families.crystal.settings import (
     MIN_GAIN_MARGIN,
     PPM,
     ageing,
+    ageing_span,
     allowed_values,
     band,
     band_factor,
@@ -103,7 +104,6 @@ class Crystal:
             )
         )
         tol, stab, age = band(block, "tolerance"), band(block, "stability"), ageing(block)
-        years = block.conditions.life_years
         out.append(
             band_factor("xtal.cal", f"crystal calibration ({ppm(tol.low)}…{ppm(tol.high)})", tol)
         )
@@ -117,7 +117,7 @@ class Crystal:
         out.append(
             band_factor(
                 "xtal.age",
-                f"crystal ageing over {years:g} years ({ppm(age.low)}…{ppm(age.high)})",
+                f"crystal ageing {ageing_span(block)} ({ppm(age.low)}…{ppm(age.high)})",
                 age,
             )
         )

@@ -24,6 +24,7 @@ __all__ = [
     "MIN_GAIN_MARGIN",
     "PPM",
     "ageing",
+    "ageing_span",
     "allowed_values",
     "band",
     "band_factor",
@@ -115,10 +116,41 @@ def band(block: Block, key: str) -> Window:
 
 
 def ageing(block: Block) -> Window:
-    """Ageing per year times the life (a ±3 ppm/year crystal over 5 years: ±15 ppm)."""
+    """The crystal's ageing over the block's life.
+
+    A rate per year times the life (a ±3 ppm/year crystal over 5 years: ±15 ppm).  A
+    total over a stated period (``aging ±10 ppm over 10 years``) holds as it is for
+    any life up to that period (ageing only accumulates, so the total bounds every
+    shorter life) and is stretched in proportion beyond it (crystal ageing slows
+    with time, roughly logarithmically, so the proportional extension is a safe
+    bound; common practice).
+    """
     w = band(block, "aging")
-    years = block.conditions.life_years
-    return Window(w.low * years, w.high * years, "ratio", 0.0 if w.low <= 0 <= w.high else None)
+    life = block.conditions.life_years
+    period = block.number("aging_period") or 0.0
+    scale = life
+    if period > 0.0:
+        scale = max(1.0, life * _YEAR_S / period)
+    return Window(w.low * scale, w.high * scale, "ratio", 0.0 if w.low <= 0 <= w.high else None)
+
+
+def ageing_span(block: Block) -> str:
+    """How the ageing band was reached, in words (``over 5 years``, ``over 20 years,
+    stretched from ±10 ppm over 10 years``)."""
+    life = block.conditions.life_years
+    period = block.number("aging_period") or 0.0
+    if period <= 0.0:
+        return f"over {life:g} years"
+    stated = period / _YEAR_S
+    if life <= 0.0:
+        return f"over {stated:g} years, as stated (no 'life')"
+    if life * _YEAR_S <= period:
+        return f"over {life:g} years (the total stated for {stated:g} years)"
+    return f"over {life:g} years (the total stated for {stated:g} years, in proportion)"
+
+
+#: One year in seconds (the Julian year the spec's ``years`` unit uses).
+_YEAR_S = 365.25 * 86400.0
 
 
 def needed(block: Block, key: str) -> float:
