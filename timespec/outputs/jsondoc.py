@@ -1,11 +1,17 @@
 """The JSON document of a solved spec: a versioned contract other tools rely on.
 
-Layout (``format_version`` 1, ``format_minor`` 1)::
+The documentation page *JSON documents* (``docs/json.rst``) describes every key
+(type, unit, meaning) and the compatibility promise; the JSON Schema shipped as
+``timespec/schemas/timespec-result.schema.json`` (loaded by
+:func:`timespec.outputs.schemas.load_schema`) checks it, and describes the
+``format_minor`` written here: a change of layout updates all three.
+
+Layout (``format_version`` 1, ``format_minor`` 2)::
 
     {
       "format": "timespec-result",
       "format_version": 1,
-      "format_minor": 1,
+      "format_minor": 2,
       "timespec_version": "0.1.0",
       "spec": "examples/burn_in_rack.tspec",
       "ok": true,
@@ -19,9 +25,9 @@ Layout (``format_version`` 1, ``format_minor`` 1)::
           "nominal": 0.1496,
           "worst_case": {"low": 0.1383, "high": 0.1616,
                          "low_corner": "...", "high_corner": "..."},
-          "parts": [{"ref": "R", "value": 619000.0, "unit": "ohm", "series": "E96",
-                     "tolerance": 0.01, "tempco_ppm": 50.0, "dielectric": null,
-                     "pinned": false, "pair": null}, ...],
+          "parts": [{"ref": "R", "designator": "R12", "value": 619000.0, "unit": "ohm",
+                     "series": "E96", "tolerance": 0.01, "tempco_ppm": 50.0,
+                     "dielectric": null, "pinned": false, "pair": null}, ...],
           "circuit": "",
           "outputs": [ {"name", "unit", "required", "nominal", "worst_case", "meets"}, ... ],
           "findings": [{"severity", "code", "message"}],
@@ -62,6 +68,13 @@ Format minor versions (each keeps every key of the one before):
   first-order share (still given, as ``rss_share``) reads as 0; the list is
   ordered by it.  ``first_order``, ``total`` and their standard errors are
   added.  ``statistics.monte_carlo.drivers`` names the method.
+* **1.2**: every part (of the design and of the alternatives) carries
+  ``designator``, its board reference designator from the block's ``refs``
+  statement (``"R12"``), ``null`` when the spec gives none; a pair's ``pair``
+  carries ``designators``, the two parts' designators (the second from ``refs``,
+  else the first with the suffixes A and B), ``null`` when the spec gives none.
+  A pinned part's ``series`` is the IEC 60063 series of its value and tolerance
+  (``470k 5%`` is E24), no longer the coarsest series holding the value.
 """
 
 from __future__ import annotations
@@ -74,6 +87,8 @@ from typing import Any
 from timespec._version import __version__
 from timespec.analysis import DRIVER_METHOD, Capability
 from timespec.design.result import BlockResult, Candidate, OutputResult, Result
+from timespec.model import Block
+from timespec.outputs.tables import designators
 from timespec.parts.part import Part
 from timespec.units import kind_symbol
 
@@ -83,7 +98,7 @@ __all__ = ["FORMAT_MINOR", "FORMAT_VERSION", "result_to_dict", "result_to_json"]
 FORMAT_VERSION = 1
 #: Bumped when keys are added or a value is estimated by a sounder method (see the
 #: module notes); a reader of ``format_version`` 1 keeps working.
-FORMAT_MINOR = 1
+FORMAT_MINOR = 2
 
 
 def _num(x: float) -> float | None:
@@ -97,10 +112,13 @@ def _unit(kind: str) -> str:
         return ""
 
 
-def _part(p: Part) -> dict[str, Any]:
+def _part(p: Part, block: Block) -> dict[str, Any]:
     pair = getattr(p, "pair", None)
+    names = block.refs.get(p.ref, ())
+    pair_names = list(designators(block, p)) if pair and names else None
     return {
         "ref": p.ref,
+        "designator": names[0] if names else None,
         "value": p.value,
         "unit": _unit(p.kind),
         "series": p.series,
@@ -108,7 +126,11 @@ def _part(p: Part) -> dict[str, Any]:
         "tempco_ppm": p.tempco_ppm,
         "dielectric": p.dielectric,
         "pinned": p.pinned,
-        "pair": ({"a": pair[0], "b": pair[1], "how": pair[2]} if pair else None),
+        "pair": (
+            {"a": pair[0], "b": pair[1], "how": pair[2], "designators": pair_names}
+            if pair
+            else None
+        ),
     }
 
 
@@ -130,10 +152,10 @@ def _output(o: OutputResult) -> dict[str, Any]:
     }
 
 
-def _candidate(c: Candidate) -> dict[str, Any]:
+def _candidate(c: Candidate, block: Block) -> dict[str, Any]:
     return {
         "circuit": c.design.variant,
-        "parts": [_part(p) for p in c.design.parts],
+        "parts": [_part(p, block) for p in c.design.parts],
         "outputs": [_output(o) for o in c.outputs],
         "meets": c.meets,
         "reason": c.rank_reason,
@@ -286,7 +308,7 @@ def block_to_dict(b: BlockResult) -> dict[str, Any]:
             if primary
             else None
         ),
-        "parts": [_part(p) for p in best.design.parts] if best else [],
+        "parts": [_part(p, b.block) for p in best.design.parts] if best else [],
         "circuit": best.design.variant if best else "",
         "outputs": [_output(o) for o in best.outputs] if best else [],
         "findings": [
@@ -295,7 +317,7 @@ def block_to_dict(b: BlockResult) -> dict[str, Any]:
         ],
         "statistics": _statistics(b),
         "contributors": _contributors(b),
-        "alternatives": [_candidate(c) for c in b.alternatives],
+        "alternatives": [_candidate(c, b.block) for c in b.alternatives],
         "fixes": [
             {
                 "kind": getattr(f, "kind", ""),

@@ -241,6 +241,12 @@ def _fix_lines(result: BlockResult) -> list[str]:
     return lines
 
 
+def _as_built(result: BlockResult) -> bool:
+    """A block with every part pinned and no requirement that passes its design rules:
+    a board characterised as built."""
+    return result.verdict == "meets" and not result.block.requirements
+
+
 def render_block(result: BlockResult) -> str:
     """Render one block's section of the report.
 
@@ -259,6 +265,8 @@ def render_block(result: BlockResult) -> str:
     verdict = _VERDICT.get(result.verdict, result.verdict.upper())
     if result.mode == "checked":
         verdict = f"checked: {verdict}"
+    if _as_built(result):
+        verdict = "AS BUILT (no requirement)"
     lines = [head + "─" * max(3, _WIDTH - len(head) - len(verdict) - 1) + " " + verdict]
     best = result.best
     if best is None:
@@ -336,7 +344,14 @@ def render_check(result: Result) -> str:
     for b in result.blocks:
         status = "ok" if b.verdict == "meets" else b.verdict.upper()
         bits = []
-        if b.best is not None:
+        if _as_built(b) and b.best is not None:
+            status = "as built"
+            o = b.best.outputs[0]
+            bits.append(
+                f"{o.name} {format_interval(o.low, o.high, o.kind, ratio=ratio_of(o))} "
+                "(no requirement)"
+            )
+        elif b.best is not None:
             for o in b.best.outputs:
                 if o.required is None:
                     continue
