@@ -105,11 +105,14 @@ def test_check_exits_1_when_a_pinned_design_misses(tmp_path: Path) -> None:
     )
     code, out, _ = run("check", str(spec))
     assert code == 1
-    assert out.startswith("FAILS")
+    # one compiler-style line at the failing requirement ('width', line 2 column 3)
+    assert out.startswith(f"{spec}:2:3: error: block 'hold' fails: width is ")
+    assert out.endswith("checked 1 file, 1 block: 0 meet, 1 fail, 0 infeasible; 0 spec errors\n")
     spec.write_text(spec.read_text().replace("560k", "619k"), encoding="utf-8")
     code, out, _ = run("check", str(spec))
     assert code == 0
-    assert out.startswith("ok")
+    assert ": error: " not in out
+    assert out.endswith("checked 1 file, 1 block: 1 meet, 0 fail, 0 infeasible; 0 spec errors\n")
 
 
 def test_output_file_is_written_atomically(tmp_path: Path) -> None:
@@ -145,4 +148,4 @@ def test_python_dash_m_entry_point() -> None:
         check=False,
     )
     assert proc.returncode == 0, proc.stderr
-    assert "blocks meet their requirements" in proc.stdout
+    assert proc.stdout.endswith("blocks: 3 meet, 0 fail, 0 infeasible; 0 spec errors\n")

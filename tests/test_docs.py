@@ -20,7 +20,11 @@ DOCS = ROOT / "docs"
 
 
 def _sphinx(src: Path, out: Path, *extra: str) -> subprocess.CompletedProcess[str]:
-    """Run sphinx-build with warnings as errors, the package in this checkout importable."""
+    """Run sphinx-build with warnings as errors, the package in this checkout importable.
+
+    ``-n`` (nitpicky) makes every unresolved cross-reference a warning too, so a
+    link to a name the API page does not document fails the build.
+    """
     env = {**__import__("os").environ, "PYTHONPATH": str(ROOT)}
     return subprocess.run(
         [
@@ -28,6 +32,7 @@ def _sphinx(src: Path, out: Path, *extra: str) -> subprocess.CompletedProcess[st
             "-m",
             "sphinx",
             "-W",
+            "-n",
             "--keep-going",
             "-b",
             "html",
@@ -61,6 +66,7 @@ def built_docs(tmp_path_factory: pytest.TempPathFactory) -> Path:
 
 
 def test_docs_build_with_warnings_as_errors(built_docs: Path) -> None:
+    # built with -W -n: no warning, and no cross-reference left unresolved
     for page in (
         "index",
         "quickstart",
@@ -266,3 +272,56 @@ def test_public_api_has_numpydoc_docstrings() -> None:
         problems += _check_class(name, obj) if inspect.isclass(obj) else _check_function(name, obj)
     assert seen >= 10
     assert not problems, "\n".join(problems)
+
+
+# --------------------------------------------------------------------------
+# the docs' own name resolution (docs/conf.py): re-exports and attributes resolve
+# to where the object is documented, and nothing else does
+
+
+@pytest.fixture(scope="module")
+def docs_conf() -> Any:
+    pytest.importorskip("sphinx")
+    pytest.importorskip("numpydoc")
+    import importlib.util
+
+    spec = importlib.util.spec_from_file_location("_timespec_docs_conf", DOCS / "conf.py")
+    assert spec is not None and spec.loader is not None
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    return module
+
+
+def test_conf_resolves_a_reexport_to_its_definition(docs_conf: Any) -> None:
+    assert docs_conf._defined_at("timespec.SpecError", {}) == "timespec.errors.SpecError"
+    assert (
+        docs_conf._defined_at("timespec.analysis.Factor", {}) == "timespec.analysis.factors.Factor"
+    )
+    assert docs_conf._defined_at("timespec.analysis.factors", {}) == "timespec.analysis.factors"
+    assert docs_conf._defined_at("timespec.no_such_name", {}) is None
+    assert docs_conf._defined_at("timespec.analysis.NoSuchClass", {}) is None
+
+
+def test_conf_links_an_attribute_only_when_its_class_describes_it(docs_conf: Any) -> None:
+    documented = {"timespec.analysis.factors.Factor": object()}
+    owner = docs_conf._field_owner
+    home = "timespec.analysis.factors.Factor"
+    # ``Factor`` as the module it is written in sees it: worstcase imports it, units does not
+    assert owner("Factor.through", "timespec.analysis.worstcase", "", documented) == home
+    assert owner("Factor.through", "timespec.units", "", documented) is None
+    assert owner("through", "timespec.analysis.factors", "Factor", documented) == home
+    assert owner("timespec.analysis.Factor.through", "timespec.x", "", documented) == home
+    assert owner("through_typo", "timespec.analysis.factors", "Factor", documented) is None
+    assert owner("through", "timespec.analysis.factors", "Factor", {}) is None  # undocumented
+
+
+def test_conf_shows_array_aliases_by_name(docs_conf: Any) -> None:
+    import numpy as np
+    import numpy.typing as npt
+    from sphinx.util.typing import stringify_annotation
+
+    spelled = stringify_annotation(npt.NDArray[np.float64], "smart")
+    assert (
+        docs_conf._array_aliases(f"(r: float | {spelled}) ") == "(r: ~timespec.physics.ArrayLike) "
+    )
+    assert docs_conf._array_aliases(spelled) == "~timespec.physics.FloatArray"

@@ -5,24 +5,42 @@ Commands:
 ``timespec solve FILE``
     Choose parts for every block and print the report (``--json`` for the JSON
     document).
-``timespec check FILE``
-    For CI: one line per block; exit 1 when any block does not meet its
-    requirement (a pinned part was changed, a tolerance or range widened).
+``timespec check PATH...``
+    For CI: check spec files and folders (every ``*.tspec`` below a folder) in
+    one process, in parallel above a few blocks; one compiler-style line
+    ``path:line:col: error|warning: message [rule]`` per failing or infeasible
+    block (at the requirement that fails), design-rule warning and spec error,
+    then a summary (``--json`` for the run document, ``--sarif`` for SARIF
+    2.1.0, ``--jobs N`` to set the worker processes, ``--verbose`` for notes).
 ``timespec table FILE``
-    Part-value table in Markdown, reST or CSV for the docs.
+    Part-value table in Markdown, reST or CSV for the docs (``--bom``: a bill of
+    materials, one row per part).
 ``timespec limits FILE``
     Fixture acceptance limits (time and capture-clock counts) from the spec's
     ``fixture:`` section.
 ``timespec plot FILE -o chart.png``
-    Margin chart of every requirement (needs the ``plot`` extra).
+    Margin chart of every requirement; ``--kind waveform|histogram|ambient`` for
+    the other charts (needs the ``plot`` extra).
 ``timespec format FILE...``
     Canonical layout of spec files (``--check`` for CI, ``--write`` in place).
+``timespec explain FILE [BLOCK...]``
+    The derivation of each output: the formula, every number at nominal and at
+    the worst-case corners, and the source of each class constant
+    (``--form text|rst|md``).
+``timespec diff OLD NEW`` or ``timespec diff REV1..REV2 -- PATH``
+    Compare two specs (or one at two git revisions) block by block for review
+    (``--form md`` for a pull-request comment); exit 1 when a block got worse.
 
 Exit codes: 0 every block meets its requirement; 1 a block fails or is
 infeasible; 2 a mistake in the spec or on the command line (message on
 stderr, no traceback); 3 an unexpected error, which is a bug in timespec (one
 line on stderr saying so and how to report it; the traceback only with
-``--debug`` or the environment variable ``TIMESPEC_DEBUG=1``).
+``--debug`` or the environment variable ``TIMESPEC_DEBUG=1``).  Over a
+``check`` of several files the worst wins: 2 when any file has a spec error
+(it could not be verified, whatever the others say), else 1 when any block
+fails or is infeasible, else 0; a path that does not exist or an explicitly
+named file that is not a ``.tspec`` file is a usage error (2) before anything
+is solved.
 """
 
 from __future__ import annotations
@@ -93,16 +111,42 @@ def _build_parser() -> argparse.ArgumentParser:
         "--samples",
         type=_whole(1, MAX_SAMPLES),
         metavar="N",
-        help="Monte Carlo samples (default: the spec's, else 20000)",
+        help="Monte Carlo samples (default: the spec's, else the project file's, else 20000)",
     )
-    p_solve.add_argument("--seed", type=_whole(0, MAX_SEED), metavar="N", help="Monte Carlo seed")
+    p_solve.add_argument(
+        "--seed",
+        type=_whole(0, MAX_SEED),
+        metavar="N",
+        help="Monte Carlo seed (default: the spec's, else the project file's, else 2026)",
+    )
     p_solve.add_argument(
         "--no-statistics", action="store_true", help="worst case only: skip RSS and Monte Carlo"
     )
 
-    p_check = sub.add_parser("check", help="verify every block; exit 1 if any does not meet")
-    common(p_check)
-    p_check.add_argument("--json", action="store_true", help="print the JSON document")
+    p_check = sub.add_parser(
+        "check", help="verify every block of spec files and folders; exit 1 if any does not meet"
+    )
+    p_check.add_argument(
+        "paths", metavar="PATH", nargs="+", help="spec files and folders (every *.tspec below)"
+    )
+    p_check.add_argument(
+        "--output", "-o", metavar="PATH", help="write to PATH (atomically) instead of stdout"
+    )
+    check_form = p_check.add_mutually_exclusive_group()
+    check_form.add_argument(
+        "--json", action="store_true", help="print the run document (timespec-check-run)"
+    )
+    check_form.add_argument("--sarif", action="store_true", help="print a SARIF 2.1.0 log")
+    p_check.add_argument(
+        "--jobs",
+        "-j",
+        type=_whole(1, 1024),
+        metavar="N",
+        help="worker processes (default: one per processor from 5 blocks on; 1: none)",
+    )
+    p_check.add_argument(
+        "--verbose", "-v", action="store_true", help="also print notes and every met block"
+    )
 
     p_limits = sub.add_parser(
         "limits", help="fixture acceptance limits in time and capture-clock counts"
@@ -115,7 +159,9 @@ def _build_parser() -> argparse.ArgumentParser:
         help="override the fixture section's decision rule",
     )
 
-    p_plot = sub.add_parser("plot", help="margin chart of every requirement (PNG, SVG or PDF)")
+    p_plot = sub.add_parser(
+        "plot", help="margin chart, waveforms, Monte Carlo histograms or ambient sweeps"
+    )
     p_plot.add_argument("spec", metavar="FILE", help="the .tspec file")
     p_plot.add_argument(
         "--output",
@@ -125,8 +171,22 @@ def _build_parser() -> argparse.ArgumentParser:
         help="image to write (.png, .svg or .pdf), atomically",
     )
     p_plot.add_argument(
+        "--kind",
+        choices=("margin", "waveform", "histogram", "ambient"),
+        default="margin",
+        help="what to draw (default: margin)",
+    )
+    p_plot.add_argument(
+        "--block",
+        action="append",
+        metavar="NAME",
+        default=[],
+        help="draw only this block (repeat for more; default: every block)",
+    )
+    p_plot.add_argument(
         "--samples", type=_whole(1, MAX_SAMPLES), metavar="N", help="Monte Carlo samples"
     )
+    p_plot.add_argument("--seed", type=_whole(0, MAX_SEED), metavar="N", help="Monte Carlo seed")
 
     p_format = sub.add_parser("format", help="lay spec files out canonically")
     p_format.add_argument("specs", metavar="FILE", nargs="+", help="the .tspec files")
@@ -149,7 +209,62 @@ def _build_parser() -> argparse.ArgumentParser:
         default="markdown",
         help="table format (default markdown)",
     )
+    p_table.add_argument(
+        "--bom",
+        action="store_true",
+        help="bill of materials: one row per part, with board designators from 'refs'",
+    )
+
+    p_explain = sub.add_parser(
+        "explain", help="the derivation of each output: formula, numbers at each corner, sources"
+    )
+    common(p_explain)
+    p_explain.add_argument("blocks", metavar="BLOCK", nargs="*", help="blocks to explain (all)")
+    p_explain.add_argument(
+        "--form",
+        choices=("text", "rst", "md"),
+        default="text",
+        help="plain text (default), reStructuredText or Markdown",
+    )
+
+    p_diff = sub.add_parser(
+        "diff",
+        help="compare two specs, or one spec at two git revisions, block by block",
+        usage="timespec diff [options] OLD NEW\n       timespec diff [options] REV1..REV2 -- PATH",
+    )
+    p_diff.add_argument(
+        "sides",
+        metavar="SIDE",
+        nargs="+",
+        help="two spec files, or a git range and the spec's path (an empty side of the "
+        "range is the working tree)",
+    )
+    p_diff.add_argument(
+        "--form", choices=("text", "md"), default="text", help="plain text or Markdown"
+    )
+    p_diff.add_argument("--json", action="store_true", help="print the JSON document")
+    p_diff.add_argument(
+        "--margin-drop",
+        type=_percent,
+        metavar="PCT",
+        help="a block whose margin falls by more than PCT %% of the required half-width "
+        "counts as worse (default: only verdicts decide)",
+    )
+    p_diff.add_argument(
+        "--output", "-o", metavar="PATH", help="write to PATH (atomically) instead of stdout"
+    )
     return parser
+
+
+def _percent(text: str) -> float:
+    """An argparse type: a size in percent, ``5%`` or ``5`` (returned as 0.05)."""
+    try:
+        value = float(text.strip().removesuffix("%"))
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a percentage such as 5%") from None
+    if not (0.0 <= value < float("inf")):
+        raise argparse.ArgumentTypeError("must be a finite size of at least 0%")
+    return value / 100.0
 
 
 def _whole(minimum: int, maximum: int) -> Callable[[str], int]:
@@ -186,28 +301,6 @@ def write_atomic(path: str | Path, text: str) -> None:
         (see :func:`timespec.outputs.files.write_bytes_safely`).
     """
     write_text_safely(path, text)
-
-
-#: Image metadata that would make two runs differ (dates), left out of every chart.
-_NO_DATES: dict[str, dict[str, None]] = {
-    "png": {},
-    "svg": {"Date": None},
-    "pdf": {"CreationDate": None, "ModDate": None},
-}
-
-
-def _figure_bytes(fig: object, fmt: str) -> bytes:
-    """The chart as image bytes, identical from run to run (no dates, fixed SVG ids)."""
-    import io
-
-    import matplotlib
-
-    buf = io.BytesIO()
-    with matplotlib.rc_context({"svg.hashsalt": "timespec"}):
-        fig.savefig(  # type: ignore[attr-defined]
-            buf, format=fmt, dpi=120, metadata=_NO_DATES.get(fmt, {})
-        )
-    return buf.getvalue()
 
 
 def write_atomic_bytes(path: str | Path, data: bytes) -> None:
@@ -261,14 +354,70 @@ def _format(args: argparse.Namespace, stdout: TextIO) -> int:
     return EXIT_OK
 
 
+def _diff(args: argparse.Namespace, stdout: TextIO) -> int:
+    import json
+
+    from timespec import api
+    from timespec.outputs.diff import diff_results, diff_to_dict, render_diff
+    from timespec.outputs.revisions import load_at_revision, split_range
+
+    sides: list[str] = args.sides
+    if len(sides) != 2:
+        late = [s for s in sides[2:] if s.startswith("-")]
+        hint = f"; options go before '--' ({late[0]!r} came after it)" if late else ""
+        raise UsageError(f"diff takes OLD NEW (two spec files) or REV1..REV2 -- PATH{hint}")
+    revs = None if Path(sides[0]).is_file() else split_range(sides[0])
+    if revs is None:
+        specs = [api.load(sides[0]), api.load(sides[1])]
+        labels = list(sides)
+    else:
+        specs = [api.load(sides[1]) if r is None else load_at_revision(r, sides[1]) for r in revs]
+        labels = [
+            s.path or sides[1] if r else f"{sides[1]} (working tree)"
+            for r, s in zip(revs, specs, strict=True)
+        ]
+    old, new = (api.solve(s, statistics=False, fixes=False) for s in specs)
+    diff = diff_results(
+        old, new, old_label=labels[0], new_label=labels[1], margin_drop=args.margin_drop
+    )
+    if args.json:
+        text = json.dumps(diff_to_dict(diff), indent=2, allow_nan=False) + "\n"
+    else:
+        text = render_diff(diff, args.form)
+    _emit(text, args.output, stdout)
+    return EXIT_FAILED if diff.worse else EXIT_OK
+
+
+def _check(args: argparse.Namespace, stdout: TextIO) -> int:
+    """``timespec check PATH...``: every spec file, one run, one output."""
+    from timespec import api
+    from timespec.outputs.checkrun import api_solve, check_paths, render_run, run_to_json
+
+    run = check_paths(
+        args.paths, jobs=args.jobs, solve=api_solve(api.solve), load=api.load, notes=args.verbose
+    )
+    if args.sarif:
+        from timespec.outputs.sarif import sarif_json
+
+        text = sarif_json(run)
+    else:
+        text = run_to_json(run) if args.json else render_run(run)
+    _emit(text, args.output, stdout)
+    return run.exit_code
+
+
 def _run(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     from timespec import api
 
     if args.command == "format":
         return _format(args, stdout)
+    if args.command == "diff":
+        return _diff(args, stdout)
+    if args.command == "check":
+        return _check(args, stdout)
     spec = api.load(args.spec)
     from timespec.outputs.jsondoc import result_to_json
-    from timespec.outputs.report import render_check, render_report
+    from timespec.outputs.report import render_report
 
     if args.command == "solve":
         progress = None if args.no_statistics else _progress(stderr)
@@ -280,10 +429,6 @@ def _run(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
             progress=progress,  # type: ignore[arg-type]
         )
         _emit(result_to_json(result) if args.json else render_report(result), args.output, stdout)
-        return EXIT_OK if result.ok else EXIT_FAILED
-    if args.command == "check":
-        result = api.solve(spec, statistics=False, fixes=False)
-        _emit(result_to_json(result) if args.json else render_check(result), args.output, stdout)
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "limits":
         import json
@@ -305,24 +450,32 @@ def _run(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
         _emit(text, args.output, stdout)
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "plot":
-        from timespec.outputs.plot import margin_chart
+        from timespec.outputs.charts import chart
+        from timespec.outputs.figures import figure_bytes
 
         suffix = Path(args.output).suffix.lower()
         if suffix not in (".png", ".svg", ".pdf"):
             raise UsageError(
                 f"cannot tell the image format of {args.output!r}: use .png, .svg or .pdf"
             )
-        result = api.solve(spec, samples=args.samples, fixes=False)
-        fig = margin_chart(result)
-        write_atomic_bytes(args.output, _figure_bytes(fig, suffix[1:]))
+        result = api.solve(spec, samples=args.samples, seed=args.seed, fixes=False)
+        fig = chart(result, args.kind, args.block)
+        write_atomic_bytes(args.output, figure_bytes(fig, suffix[1:]))
         stdout.write(f"wrote {args.output}\n")
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "table":
-        from timespec.outputs.tables import render_table
+        from timespec.outputs.tables import render_bom, render_table
 
         result = api.solve(spec, statistics=False, fixes=False)
-        _emit(render_table(result, args.format), args.output, stdout)
+        render = render_bom if args.bom else render_table
+        _emit(render(result, args.format), args.output, stdout)
         return EXIT_OK if result.ok else EXIT_FAILED
+    if args.command == "explain":
+        from timespec.outputs.explain import explain_spec, render_derivation
+
+        derivation = explain_spec(spec, args.blocks)
+        _emit(render_derivation(derivation, args.form), args.output, stdout)
+        return EXIT_OK if derivation.ok else EXIT_FAILED
     raise UsageError("no command given (try 'timespec solve FILE' or 'timespec --help')")
 
 

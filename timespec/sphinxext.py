@@ -12,8 +12,27 @@ directives:
     mistake in the spec is reported as a Sphinx warning located at the spec's
     ``file:line`` (so ``sphinx-build -W`` fails), never as a traceback.
 
+    A block that fails or is infeasible is never published as if it held: a
+    note above the table names it with its worst case against the
+    requirement, and a Sphinx warning at the directive's line fails a
+    ``-W`` build.  ``:allow-failing:`` (block names, or none for every block
+    in the table) says the failure is intended: the note stays, the warning
+    goes.  Naming a block that meets (or is not in the table) is warned about,
+    so a stale allowance does not outlive the failure it excused.
+
+    ``:plot: margin|waveform|histogram|ambient`` shows that chart
+    (:func:`timespec.outputs.charts.chart`) of the blocks instead of the table,
+    written under the build's doctree folder as SVG and PNG and copied into the
+    output by Sphinx's own image handling (each builder takes the format it
+    supports).
+
+    ``:explain:`` adds, after the table, the derivation of each output
+    (:func:`timespec.outputs.explain.render_derivation`): the formula, every
+    number at nominal and at the worst-case corners, and the source of each
+    class constant.
+
 ``.. timespec-statements::``
-    The statement vocabulary, generated from :data:`timespec.language.statements.KEYWORDS`
+    The statement vocabulary, generated from :data:`timespec.language.vocabulary.KEYWORDS`
     so the language reference never drifts from the parser.  Options:
     ``:kinds:`` (block kinds to list statements for) and ``:only:`` (only the
     statements no other block kind takes).
@@ -28,6 +47,7 @@ from __future__ import annotations
 
 import inspect
 import math
+import os
 import re
 from collections.abc import Iterable, Sequence
 from pathlib import Path
@@ -39,11 +59,11 @@ from docutils.statemachine import StringList
 from sphinx.util import logging
 from sphinx.util.docutils import SphinxDirective
 
-from timespec.design.result import Result
+from timespec.design.result import BlockResult, OutputResult, Result
 from timespec.errors import SpecError
 from timespec.language.vocabulary import KEYWORDS, Keyword
 from timespec.model import BLOCK_KINDS, Spec
-from timespec.numbers import format_quantity
+from timespec.numbers import format_interval, format_quantity, format_window, ratio_unit
 from timespec.outputs.tables import render_table
 from timespec.parts import devices
 
@@ -148,6 +168,64 @@ class _ParsingDirective(SphinxDirective):
         return list(holder.children)
 
 
+def _verdict_phrase(br: BlockResult) -> str:
+    if br.verdict == "fails":
+        return "fails at worst case" + (" (its parts are pinned)" if br.mode == "checked" else "")
+    if br.verdict == "infeasible":
+        if br.best is None:
+            return "is infeasible (no design could be formed)"
+        return "is infeasible (no allowed design meets; the closest is shown)"
+    return f"does not meet ({br.verdict})"
+
+
+def _output_failure(out: OutputResult) -> str:
+    """``width worst case 13.66 ms … 19.75 ms, required 15 ms ±2 % (…): … above``."""
+    req = out.required
+    assert req is not None
+    ratio = ratio_unit(out.name, [out.nominal, out.low, out.high, req.low, req.high])
+    worst = format_interval(out.low, out.high, out.kind, ratio=ratio)
+    required = format_window(req, ratio=ratio)
+    bounds = format_interval(req.low, req.high, out.kind, ratio=ratio)
+    if bounds != required:
+        required += f" ({bounds})"
+    text = f"{out.name} worst case {worst}, required {required}"
+    if not (math.isfinite(out.low) and math.isfinite(out.high)):
+        return text + ": the worst case is unbounded"
+    low_margin, high_margin = out.margin
+    beyond = []
+    if low_margin < 0:
+        beyond.append(f"{format_quantity(-low_margin, out.kind, ratio=ratio)} below the low limit")
+    if high_margin < 0:
+        beyond.append(
+            f"{format_quantity(-high_margin, out.kind, ratio=ratio)} above the high limit"
+        )
+    return text + (": " + ", ".join(beyond) if beyond else "")
+
+
+def _failure_details(br: BlockResult) -> list[str]:
+    """Why a block does not meet: each output outside its window, each design-rule error."""
+    if br.best is None:
+        return list(br.notes[:1]) or ["no candidate design"]
+    details = [_output_failure(o) for o in br.best.outputs if not o.meets and o.required]
+    details += [
+        f"design-rule error: {f.message} [{f.code}]"
+        for f in br.best.findings
+        if f.severity == "error"
+    ]
+    return details or list(br.notes[:1]) or ["see the text report"]
+
+
+def _verdict_note(failing: Sequence[BlockResult]) -> list[str]:
+    """A reST warning admonition naming each block that does not meet."""
+    if not failing:
+        return []
+    out = [".. admonition:: Not every block meets its requirements", "   :class: warning", ""]
+    for br in failing:
+        details = "; ".join(_failure_details(br))
+        out.append(f"   * ``{br.block.name}`` {_escape(_verdict_phrase(br))}: {_escape(details)}.")
+    return [*out, ""]
+
+
 class TableDirective(_ParsingDirective):
     """``.. timespec-table:: spec.tspec`` — the part-value table of a spec file."""
 
@@ -158,6 +236,9 @@ class TableDirective(_ParsingDirective):
     option_spec: ClassVar[dict[str, Any]] = {
         "blocks": directives.unchanged,
         "title": directives.unchanged,
+        "allow-failing": directives.unchanged,
+        "plot": lambda arg: directives.choice(arg, ("margin", "waveform", "histogram", "ambient")),
+        "explain": directives.flag,
     }
 
     def run(self) -> list[nodes.Node]:
@@ -218,8 +299,95 @@ class TableDirective(_ParsingDirective):
                 subtype="solve",
             )
             return []
+        note = self.check_verdicts(result)
+        if "plot" in self.options:  # the chart (timespec.outputs.charts) instead of the table
+            return self.parse_lines([*note, *self.plot_lines(result, self.options["plot"])])
         text = render_table(result, "rest", title=self.options.get("title"))
-        return self.parse_lines(text.splitlines())
+        if "explain" in self.options:  # the derivation of each output after the table
+            from timespec.outputs.explain import derive, render_derivation
+
+            text += "\n" + render_derivation(derive(result), "rst")
+        return self.parse_lines([*note, *text.splitlines()])
+
+    def plot_lines(self, result: Result, kind: str) -> list[str]:
+        """Write the chart under the doctree folder; an ``image`` directive that shows it.
+
+        Parameters
+        ----------
+        result
+            The solved blocks.
+        kind
+            The chart kind.
+
+        Returns
+        -------
+        list of str
+            The reST lines (none, with a warning, when there is nothing to draw).
+        """
+        from timespec.errors import UsageError
+        from timespec.outputs.charts import write_chart
+
+        try:  # SVG and PNG: ``stem.*`` lets each builder take the one it supports
+            stem = write_chart(result, kind, Path(self.env.doctreedir) / "timespec")
+        except UsageError as exc:
+            logger.warning(
+                exc.message, location=self.get_location(), type="timespec", subtype="plot"
+            )
+            return []
+        here = Path(self.env.doc2path(self.env.docname)).parent
+        uri = Path(os.path.relpath(stem, here)).as_posix() + ".*"
+        return [f".. image:: {uri}", f"   :alt: timespec {kind} chart of {self.arguments[0]}", ""]
+
+    def check_verdicts(self, result: Result) -> list[str]:
+        """Warn about blocks that do not meet, unless ``:allow-failing:`` names them.
+
+        Parameters
+        ----------
+        result
+            The solved blocks shown in the table.
+
+        Returns
+        -------
+        list of str
+            reST lines of the note naming every failing or infeasible block
+            (empty when all meet); the note is shown whether or not the failure
+            is allowed.
+        """
+        where = self.get_location()
+        shown = [br.block.name for br in result.blocks]
+        failing = [br for br in result.blocks if br.verdict != "meets"]
+        allowing = "allow-failing" in self.options
+        allowed = _names(self.options.get("allow-failing")) or (shown if allowing else [])
+        for br in failing:
+            if br.block.name in allowed:
+                continue
+            logger.warning(
+                f"{self.arguments[0]}: block {br.block.name!r} {_verdict_phrase(br)}: "
+                f"{'; '.join(_failure_details(br))} (the table is published with a note; "
+                f"add ':allow-failing: {br.block.name}' if the failure is intended) "
+                "[timespec-table]",
+                location=where,
+                type="timespec",
+                subtype="verdict",
+            )
+        failing_names = {br.block.name for br in failing}
+        stale = [n for n in _names(self.options.get("allow-failing")) if n not in failing_names]
+        if stale or (allowing and not failing):
+            what = (
+                f"names {', '.join(map(repr, stale))}, which "
+                f"{'is not a failing block' if len(stale) == 1 else 'are not failing blocks'}"
+                " of this table"
+                if stale
+                else "is given, but no block of this table fails"
+            )
+            logger.warning(
+                f"{self.arguments[0]}: ':allow-failing:' {what}; remove the allowance "
+                "[timespec-table]",
+                location=where,
+                type="timespec",
+                subtype="allow-failing",
+            )
+        return _verdict_note(failing)
 
 
 def _where(kw: Keyword) -> str:
@@ -316,6 +484,9 @@ _FIELD_FORMS: dict[str, str] = {
     "falling": "supply-triple",
     "hysteresis_min": "supply",
     "i_input_max": "current",
+    "ith_ambient": "celsius-range",
+    "drift_ambient": "celsius-range",
+    "supply_drift_supply": "volt-range",
 }
 
 
@@ -347,6 +518,10 @@ def _device_value(field: str, value: Any) -> str:
         return f"±{value * 100:.3g} %/V"
     if form == "supply":
         return f"{value:.3g} of supply"
+    if form == "celsius-range":
+        return f"{value[0]:g} … {value[1]:g} °C"
+    if form == "volt-range":
+        return f"{value[0]:g} … {value[1]:g} V"
     if form == "supply-triple":
         return " / ".join(f"{v:.2f}" for v in value) + " of supply (min / typ / max)"
     if form is not None and isinstance(value, float) and math.isfinite(value):
