@@ -31,7 +31,7 @@ from timespec.design.result import BlockResult, OutputResult, Result
 from timespec.errors import UsageError
 from timespec.families import family
 from timespec.numbers import format_quantity
-from timespec.outputs.figures import FAILS, MEETS, REQUIRED, WORST, new_figure, required_edges
+from timespec.outputs.figures import FAILS, MEETS, REQUIRED, WORST, panel_chart, required_edges
 from timespec.outputs.waveform import nominal_inputs
 
 __all__ = ["POINTS", "AmbientSweep", "ambient_chart", "ambient_sweep", "ambient_sweeps"]
@@ -209,13 +209,7 @@ def ambient_chart(result: Result, blocks: list[str] | None = None) -> Any:
     from matplotlib.lines import Line2D
     from matplotlib.patches import Patch
 
-    height = 2.4 * len(sweeps) + 0.6
-    fig = new_figure(7.0, height)
-    axes = fig.subplots(len(sweeps), 1, squeeze=False)[:, 0]
-    for ax, s in zip(axes, sweeps, strict=True):
-        _draw(ax, s)
-    fig.tight_layout(rect=(0.0, 0.6 / height, 1.0, 1.0))
-    fig.legend(
+    legend = (
         [
             Line2D([], [], color="black"),
             Line2D([], [], color="#1f4e9a"),
@@ -224,9 +218,5 @@ def ambient_chart(result: Result, blocks: list[str] | None = None) -> Any:
             Line2D([], [], color=WORST, linestyle="--"),
         ],
         ["nominal parts", "low-corner parts", "high-corner parts", "required", "worst case"],
-        loc="lower center",
-        ncol=5,
-        fontsize=8,
-        frameon=False,
     )
-    return fig
+    return panel_chart(sweeps, _draw, legend)

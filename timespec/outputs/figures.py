@@ -13,7 +13,8 @@ from __future__ import annotations
 
 import io
 import math
-from typing import Any
+from collections.abc import Callable, Sequence
+from typing import Any, TypeVar
 
 from timespec.errors import UsageError
 from timespec.model import Window
@@ -26,8 +27,11 @@ __all__ = [
     "WORST",
     "figure_bytes",
     "new_figure",
+    "panel_chart",
     "required_edges",
 ]
+
+T = TypeVar("T")
 
 #: Image formats a chart can be written in (file suffix without the dot).
 FORMATS: tuple[str, ...] = ("png", "svg", "pdf")
@@ -95,6 +99,45 @@ def new_figure(width: float, height: float) -> Any:
     except ImportError:  # pragma: no cover - depends on the installation
         raise UsageError("plots need matplotlib: pip install 'timespec[plot]'") from None
     return Figure(figsize=(width, height))
+
+
+def panel_chart(
+    items: Sequence[T],
+    draw: Callable[[Any, T], None],
+    legend: tuple[Sequence[Any], Sequence[str]],
+    *,
+    width: float = 7.0,
+    panel: float = 2.4,
+) -> Any:
+    """A figure of one panel per item, stacked, with one legend along the bottom.
+
+    Parameters
+    ----------
+    items
+        What each panel shows (at least one).
+    draw
+        Draws one item into its axes.
+    legend
+        The legend's handles and labels.
+    width, panel
+        Figure width and the height of each panel, inches.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        The figure.
+    """
+    height = panel * len(items) + 0.6
+    fig = new_figure(width, height)
+    axes = fig.subplots(len(items), 1, squeeze=False)[:, 0]
+    for ax, item in zip(axes, items, strict=True):
+        draw(ax, item)
+    fig.tight_layout(rect=(0.0, 0.6 / height, 1.0, 1.0))
+    handles, labels = legend
+    fig.legend(
+        list(handles), list(labels), loc="lower center", ncol=len(labels), fontsize=8, frameon=False
+    )
+    return fig
 
 
 def figure_bytes(fig: Any, fmt: str, *, dpi: int = 120) -> bytes:

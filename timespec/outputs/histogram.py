@@ -32,7 +32,7 @@ from timespec.design.statistics import chunk_size
 from timespec.errors import UsageError
 from timespec.families import family
 from timespec.numbers import format_quantity
-from timespec.outputs.figures import MEETS, REQUIRED, WORST, new_figure, required_edges
+from timespec.outputs.figures import MEETS, REQUIRED, WORST, panel_chart, required_edges
 
 __all__ = ["BINS", "Histogram", "histogram_chart", "histograms", "output_samples"]
 
@@ -258,13 +258,7 @@ def histogram_chart(
     from matplotlib.lines import Line2D
     from matplotlib.patches import Patch
 
-    height = 2.4 * len(hs) + 0.6
-    fig = new_figure(7.0, height)
-    axes = fig.subplots(len(hs), 1, squeeze=False)[:, 0]
-    for ax, h in zip(axes, hs, strict=True):
-        _draw(ax, h)
-    fig.tight_layout(rect=(0.0, 0.6 / height, 1.0, 1.0))
-    fig.legend(
+    legend = (
         [
             Patch(facecolor="#4a6fa5"),
             Patch(facecolor=REQUIRED, edgecolor=MEETS),
@@ -272,9 +266,5 @@ def histogram_chart(
             Line2D([], [], color="black"),
         ],
         ["Monte Carlo samples", "required window", "worst case", "nominal"],
-        loc="lower center",
-        ncol=4,
-        fontsize=8,
-        frameon=False,
     )
-    return fig
+    return panel_chart(hs, _draw, legend)

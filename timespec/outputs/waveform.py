@@ -43,7 +43,7 @@ from timespec.families import family
 from timespec.families.astable.diode import DIODE
 from timespec.families.inputs import apply_part, drain_current
 from timespec.families.schmitt import threshold_centre, thresholds, width_knots
-from timespec.outputs.figures import MEETS, REQUIRED, WORST, new_figure
+from timespec.outputs.figures import MEETS, REQUIRED, WORST, panel_chart
 from timespec.physics import monostable
 from timespec.physics.astable import (
     diode_equation_charge,
@@ -605,14 +605,7 @@ def waveform_chart(result: Result, blocks: list[str] | None = None) -> Any:
         raise UsageError(
             "nothing to plot: no block has a capacitor waveform (crystal blocks have none)"
         )
-    fig = new_figure(8.0, 2.9 * len(waves) + 0.6)
-    axes = fig.subplots(len(waves), 1, squeeze=False)[:, 0]
-    for ax, wf in zip(axes, waves, strict=True):
-        _draw(ax, wf)
-    handles, labels = _legend()
-    fig.tight_layout(rect=(0.0, 0.6 / (2.9 * len(waves) + 0.6), 1.0, 1.0))
-    fig.legend(handles, labels, loc="lower center", ncol=5, fontsize=8, frameon=False)
-    return fig
+    return panel_chart(waves, _draw, _legend(), width=8.0, panel=2.9)
 
 
 def _legend() -> tuple[list[Any], list[str]]:
