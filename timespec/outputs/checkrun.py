@@ -38,7 +38,6 @@ pays only from a few dozen blocks.
 from __future__ import annotations
 
 import functools
-import json
 import math
 import multiprocessing
 import os
@@ -65,7 +64,7 @@ from timespec.errors import (
 from timespec.language.project import project_for
 from timespec.model import Block, Spec
 from timespec.numbers import format_interval, format_part_value, format_quantity
-from timespec.outputs.jsondoc import result_to_dict
+from timespec.outputs.jsondoc import result_to_dict, strict_json
 from timespec.outputs.report import ratio_of
 
 __all__ = [
@@ -805,16 +804,6 @@ def run_to_dict(run: CheckRun) -> dict[str, Any]:
     }
 
 
-def _finite(obj: Any) -> Any:
-    if isinstance(obj, float):
-        return obj if math.isfinite(obj) else None
-    if isinstance(obj, dict):
-        return {str(k): _finite(v) for k, v in obj.items()}
-    if isinstance(obj, list | tuple):
-        return [_finite(v) for v in obj]
-    return obj
-
-
 def run_to_json(run: CheckRun, *, indent: int | None = 2) -> str:
     """The run document as strict JSON text (no NaN or Infinity).
 
@@ -830,7 +819,7 @@ def run_to_json(run: CheckRun, *, indent: int | None = 2) -> str:
     str
         The document, ending with a newline.
     """
-    return json.dumps(_finite(run_to_dict(run)), indent=indent, allow_nan=False) + "\n"
+    return strict_json(run_to_dict(run), indent=indent)
 
 
 def iter_diagnostics(run: CheckRun) -> Iterable[Diagnostic]:

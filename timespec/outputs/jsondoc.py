@@ -92,7 +92,7 @@ from timespec.outputs.tables import designators
 from timespec.parts.part import Part
 from timespec.units import kind_symbol
 
-__all__ = ["FORMAT_MINOR", "FORMAT_VERSION", "result_to_dict", "result_to_json"]
+__all__ = ["FORMAT_MINOR", "FORMAT_VERSION", "result_to_dict", "result_to_json", "strict_json"]
 
 #: Bumped when a key changes meaning or disappears; adding keys does not bump it.
 FORMAT_VERSION = 1
@@ -374,7 +374,25 @@ def result_to_json(result: Result, *, indent: int | None = 2) -> str:
     str
         The document, ending with a newline.
     """
-    return json.dumps(_clean(result_to_dict(result)), indent=indent, allow_nan=False) + "\n"
+    return strict_json(result_to_dict(result), indent=indent)
+
+
+def strict_json(doc: Any, *, indent: int | None = 2) -> str:
+    """A document as strict JSON text: infinite and NaN floats written as ``null``.
+
+    Parameters
+    ----------
+    doc
+        Dicts, lists, tuples, strings, numbers, booleans and ``None``.
+    indent
+        Indentation, or ``None`` for one line.
+
+    Returns
+    -------
+    str
+        The text, ending with a newline (the layout every timespec document uses).
+    """
+    return json.dumps(_clean(doc), indent=indent, allow_nan=False) + "\n"
 
 
 def _clean(obj: Any) -> Any:
