@@ -47,3 +47,13 @@ def test_named_files_are_checked_even_if_excluded_or_empty(tmp_path: Path) -> No
     assert run.returncode == 2 and "wip.tspec:2:" in run.stdout + run.stderr
     run = _check("common.tspec", cwd=tmp_path)
     assert run.returncode == 2 and "the spec has no blocks" in run.stdout + run.stderr
+
+
+def test_a_cut_short_list_of_mistakes_says_so(tmp_path: Path) -> None:
+    lines = ["oneshot a:", "  width 10 ms ±5%", "  supply 12 V"]
+    lines += [f"  widht{i} 3" for i in range(25)]
+    (tmp_path / "many.tspec").write_text("\n".join(lines) + "\n", encoding="utf-8")
+    run = _check("many.tspec", cwd=tmp_path)
+    assert run.returncode == 2
+    assert "note: stopped after 20 mistakes" in run.stdout
+    assert "20 spec errors" in run.stdout

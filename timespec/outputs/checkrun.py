@@ -285,6 +285,37 @@ def error_diagnostic(exc: SpecError, path: str) -> Diagnostic:
     )
 
 
+def spec_error_diagnostics(exc: SpecError, path: str) -> tuple[Diagnostic, ...]:
+    """Every mistake an error stands for, as diagnostics, and a note when the parser
+    stopped collecting them (:data:`timespec.errors.MAX_ERRORS`).
+
+    Parameters
+    ----------
+    exc
+        The error (one mistake, or :class:`timespec.errors.SpecErrors`).
+    path
+        The spec file being checked.
+
+    Returns
+    -------
+    tuple of Diagnostic
+        In the order the parser found them.
+    """
+    out = [error_diagnostic(e, path) for e in _spec_errors(exc)]
+    if getattr(exc, "truncated", False):
+        out.append(
+            Diagnostic(
+                path=path,
+                line=None,
+                column=None,
+                severity="note",
+                rule="spec-errors-truncated",
+                message=f"stopped after {len(out)} mistakes; fix these and run it again",
+            )
+        )
+    return tuple(out)
+
+
 def _spec_errors(exc: SpecError) -> tuple[SpecError, ...]:
     """The independent mistakes an error stands for (a parser may gather several)."""
     many = getattr(exc, "errors", None)
@@ -509,7 +540,7 @@ class CheckRun:
             "meets": verdicts.count("meets"),
             "fails": verdicts.count("fails"),
             "infeasible": verdicts.count("infeasible"),
-            "spec_errors": sum(len(f.errors) for f in self.files),
+            "spec_errors": sum(1 for f in self.files for e in f.errors if e.severity == "error"),
             "files_with_errors": sum(1 for f in self.files if f.errors),
         }
 
@@ -640,10 +671,10 @@ def check_paths(
                 kept.pop()  # reached by a walk: shared defaults for others to include
                 continue
             specs.append(None)
-            errors.append(tuple(error_diagnostic(e, name) for e in _spec_errors(exc)))
+            errors.append(spec_error_diagnostics(exc, name))
         except SpecError as exc:
             specs.append(None)
-            errors.append(tuple(error_diagnostic(e, name) for e in _spec_errors(exc)))
+            errors.append(spec_error_diagnostics(exc, name))
     tasks = [(solve, b, s.path) for s in specs if s is not None for b in s.blocks]
     solved = iter(_solve_all(tasks, jobs))
     checks: list[FileCheck] = []
