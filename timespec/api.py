@@ -10,7 +10,7 @@ from __future__ import annotations
 from collections.abc import Callable
 from pathlib import Path
 
-from timespec.design.result import Result
+from timespec.design.result import BlockResult, Result
 from timespec.errors import UsageError
 from timespec.language import assemble as _spec
 from timespec.model import Spec
@@ -119,6 +119,27 @@ def solve(
     return result
 
 
+def _no_fix_note(b: BlockResult) -> str:
+    """Why no searched change helps, from what the closest design actually breaks."""
+    searched = (
+        "no change searched (finer series, pairs, tighter resistors or capacitors, "
+        "a steadier dielectric, a trimmer, a narrower ambient range) makes it feasible"
+    )
+    best = b.best
+    rules = sorted({f.code for f in best.findings if f.severity == "error"}) if best else []
+    if best is not None and rules and best.excess == 0:
+        return (
+            f"{searched}: every window is met, but the design breaks a design rule "
+            f"({', '.join(rules)}) that no part change removes; see the finding"
+        )
+    if rules:
+        return (
+            f"{searched}: the closest design misses its window and breaks a design rule "
+            f"({', '.join(rules)})"
+        )
+    return f"{searched}: the requirement asks for less spread than the circuit class gives"
+
+
 def _with_fixes(result: Result) -> Result:
     import dataclasses
 
@@ -132,12 +153,7 @@ def _with_fixes(result: Result) -> Result:
             found = suggest_fixes(b.block, solved=b)
             notes = b.notes
             if not found:
-                notes = (
-                    *notes,
-                    "no change searched (finer series, pairs, tighter resistors or capacitors, "
-                    "a steadier dielectric, a trimmer, a narrower ambient range) makes it "
-                    "feasible: the requirement asks for less spread than the circuit class gives",
-                )
+                notes = (*notes, _no_fix_note(b))
             b = dataclasses.replace(b, notes=notes, extra={**b.extra, "fixes": tuple(found)})
         blocks.append(b)
     return dataclasses.replace(result, blocks=tuple(blocks))

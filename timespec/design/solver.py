@@ -389,10 +389,16 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
         verdict = "fails"
     else:
         verdict = "infeasible"
-        notes.append(
-            f"none of the {len(designs)} candidate designs from the allowed parts meets the "
-            "requirement at worst case; the closest is shown"
-        )
+        if best.excess == 0:
+            notes.append(
+                f"the best of the {len(designs)} candidate designs keeps every window at worst "
+                "case but breaks a design rule (see the findings); it is shown"
+            )
+        else:
+            notes.append(
+                f"none of the {len(designs)} candidate designs from the allowed parts meets "
+                "the requirement at worst case; the closest is shown"
+            )
     for cand in (best, *alternatives):
         _check_finite(block, cand, verdict == "meets" and cand is best)
     factors: tuple[Factor, ...] = tuple(facs_of.get(best.design) or fam.factors(block, best.design))

@@ -14,7 +14,7 @@ from __future__ import annotations
 import io
 import math
 from collections.abc import Callable, Sequence
-from typing import Any, TypeVar
+from typing import Any
 
 from timespec.errors import UsageError
 from timespec.model import Window
@@ -30,8 +30,6 @@ __all__ = [
     "panel_chart",
     "required_edges",
 ]
-
-T = TypeVar("T")
 
 #: Image formats a chart can be written in (file suffix without the dot).
 FORMATS: tuple[str, ...] = ("png", "svg", "pdf")
@@ -102,8 +100,8 @@ def new_figure(width: float, height: float) -> Any:
 
 
 def panel_chart(
-    items: Sequence[T],
-    draw: Callable[[Any, T], None],
+    items: Sequence[Any],
+    draw: Callable[[Any, Any], None],
     legend: tuple[Sequence[Any], Sequence[str]],
     *,
     width: float = 7.0,

@@ -106,12 +106,18 @@ def suggest_fixes(block: Block, *, limit: int = 3, solved: BlockResult | None = 
             winners.append(key)
             found.append(_fix_from(modified, combo, res))
             found.sort(key=lambda f: (f.cost, -f.margin))
-    trim = trim_fix(block, base) or trim_with_change(block, changes)
+    # A trimmer and a narrower ambient range only take out spread: they are offered when
+    # the closest design misses its window and breaks no design rule (a trigger longer
+    # than the pulse, say, stays broken however R is trimmed).
+    spread_only = base.best is None or (
+        base.best.excess > 0 and not any(f.severity == "error" for f in base.best.findings)
+    )
+    trim = (trim_fix(block, base) or trim_with_change(block, changes)) if spread_only else None
     if trim is not None:
         found.append(trim)
     found.sort(key=lambda f: (f.cost, -f.margin))
     found = found[:limit]
-    if len(found) < limit:
+    if len(found) < limit and spread_only:
         amb = ambient_fix(block)
         if amb is not None:
             found.append(amb)
