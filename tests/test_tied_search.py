@@ -20,7 +20,7 @@ import math
 from pathlib import Path
 
 import pytest
-from hypothesis import given, settings
+from hypothesis import example, given, settings
 from hypothesis import strategies as st
 
 from timespec.analysis import Factor, grid_size, worst_case
@@ -161,6 +161,8 @@ _ASTABLE = parse(SPECS["astable-classic"]).blocks[0]
 
 
 @settings(max_examples=10, deadline=None)
+# found by the lowest-dependency CI run: the diode overshoot's Newton residue
+@example(variant="diode", ra=26458.0, rb=1000.0, c=1.0000000030519359e-09)
 @given(
     variant=st.sampled_from(["classic", "diode"]),
     ra=st.floats(1e3, 1e6),
@@ -179,6 +181,12 @@ def test_tied_search_equals_full_enumeration_random_astables(
     model = fam.evaluate(block, variant)
     tied = worst_case(facs, model)
     full = worst_case(_untied(facs), model)
+    # The classic circuit is closed form: exactly equal.  The diode circuit's overshoot
+    # comes from three Newton steps on the diode-equation charge, converged to about
+    # 1e-9 (tests/test_timer_delay.py holds it to solve_ivp within 1e-7); that residue is
+    # not monotone in the parts, so the full grid may find a point 1e-9 lower.
+    rel = 0.0 if variant == "classic" else 1e-8
     for name, e in full.items():
         got = tied[name]
-        assert _same(got.low, e.low) and _same(got.high, e.high), (name, got, e)
+        for a, b in ((got.low, e.low), (got.high, e.high)):
+            assert _same(a, b) or math.isclose(a, b, rel_tol=rel), (name, got, e)
