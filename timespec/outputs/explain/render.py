@@ -11,7 +11,8 @@ from __future__ import annotations
 
 import math
 import re
-from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Callable, Iterable, Mapping, Sequence
+from dataclasses import dataclass
 
 from timespec.numbers import PPM_OUTPUTS, format_quantity, format_window
 from timespec.outputs.explain.derive import BlockDerivation, Derivation, OutputDerivation
@@ -306,25 +307,6 @@ def _rst_literal(lines: Iterable[str]) -> list[str]:
     return ["::", "", *body, ""] if body else []
 
 
-def _rst_output(o: OutputDerivation) -> list[str]:
-    out = [f"**{_rst_escape(_output_title(o))}**", ""]
-    if o.head:
-        out.extend(["Formula:", ""])
-        out.extend(_rst_literal([*_equations(o), *(f"({n})" for n in o.notes)]))
-    out.extend(["Parts at a corner:", ""])
-    out.extend(_rst_literal(o.parts))
-    out.extend(["Inputs (the factors of the worst-case search):", ""])
-    out.extend(_rst_table(_INPUT_HEAD, _input_rows(o)))
-    if o.symbols:
-        out.extend(["Symbols:", ""])
-        out.extend(_rst_table(_SYMBOL_HEAD, _symbol_rows(o)))
-        for j in range(3):
-            out.extend([f"Worked {_rst_escape(_corner_note(o, j))}:", ""])
-            out.extend(_rst_literal(_worked(o, j)))
-    out.extend([f"Result: {_rst_escape(_verdict_line(o))} ({_rst_escape(_agreement(o))}).", ""])
-    return out
-
-
 def _rst_block(b: BlockDerivation) -> list[str]:
     out = [f".. rubric:: {_rst_escape(_title(b))}", ""]
     if b.parts:
@@ -332,7 +314,7 @@ def _rst_block(b: BlockDerivation) -> list[str]:
     for n in b.notes:
         out.extend([f"Note: {_rst_escape(n)}", ""])
     for o in b.outputs:
-        out.extend(_rst_output(o))
+        out.extend(_marked_output(o, _RST))
     if b.constants:
         out.extend([f"Constants of {_rst_escape(b.name)} and their sources:", ""])
         out.extend(_rst_table(_CONSTANT_HEAD, _constant_rows(b)))
@@ -364,25 +346,6 @@ def _md_code(lines: Iterable[str]) -> list[str]:
     return ["```text", *body, "```", ""] if body else []
 
 
-def _md_output(o: OutputDerivation) -> list[str]:
-    out = [f"### {_md_escape(_output_title(o))}", ""]
-    if o.head:
-        out.extend(["Formula:", ""])
-        out.extend(_md_code([*_equations(o), *(f"({n})" for n in o.notes)]))
-    out.extend(["Parts at a corner:", ""])
-    out.extend(_md_code(o.parts))
-    out.extend(["Inputs (the factors of the worst-case search):", ""])
-    out.extend(_md_table(_INPUT_HEAD, _input_rows(o)))
-    if o.symbols:
-        out.extend(["Symbols:", ""])
-        out.extend(_md_table(_SYMBOL_HEAD, _symbol_rows(o)))
-        for j in range(3):
-            out.extend([f"Worked {_md_escape(_corner_note(o, j))}:", ""])
-            out.extend(_md_code(_worked(o, j)))
-    out.extend([f"Result: {_md_escape(_verdict_line(o))} ({_md_escape(_agreement(o))}).", ""])
-    return out
-
-
 def _md_block(b: BlockDerivation) -> list[str]:
     out = [f"## {_md_escape(_title(b))}", ""]
     if b.parts:
@@ -390,7 +353,7 @@ def _md_block(b: BlockDerivation) -> list[str]:
     for n in b.notes:
         out.extend([f"Note: {_md_escape(n)}", ""])
     for o in b.outputs:
-        out.extend(_md_output(o))
+        out.extend(_marked_output(o, _MD))
     if b.constants:
         out.extend(["Constants and their sources:", ""])
         out.extend(_md_table(_CONSTANT_HEAD, _constant_rows(b)))
@@ -442,3 +405,40 @@ def render_derivation(derivation: Derivation, form: str = "text") -> str:
     while lines and not lines[-1]:
         lines.pop()
     return "\n".join(lines) + "\n"
+
+
+# --------------------------------------------------------------------------
+# one output in a markup (reST or Markdown)
+
+
+@dataclass(frozen=True)
+class _Markup:
+    """How a markup writes an output's heading, plain text, code and tables."""
+
+    heading: Callable[[str], str]
+    escape: Callable[[str], str]
+    code: Callable[[Iterable[str]], list[str]]
+    table: Callable[[Sequence[str], Iterable[Sequence[str]]], list[str]]
+
+
+def _marked_output(o: OutputDerivation, m: _Markup) -> list[str]:
+    out = [m.heading(_output_title(o)), ""]
+    if o.head:
+        out.extend(["Formula:", ""])
+        out.extend(m.code([*_equations(o), *(f"({n})" for n in o.notes)]))
+    out.extend(["Parts at a corner:", ""])
+    out.extend(m.code(o.parts))
+    out.extend(["Inputs (the factors of the worst-case search):", ""])
+    out.extend(m.table(_INPUT_HEAD, _input_rows(o)))
+    if o.symbols:
+        out.extend(["Symbols:", ""])
+        out.extend(m.table(_SYMBOL_HEAD, _symbol_rows(o)))
+        for j in range(3):
+            out.extend([f"Worked {m.escape(_corner_note(o, j))}:", ""])
+            out.extend(m.code(_worked(o, j)))
+    out.extend([f"Result: {m.escape(_verdict_line(o))} ({m.escape(_agreement(o))}).", ""])
+    return out
+
+
+_RST = _Markup(lambda t: f"**{_rst_escape(t)}**", _rst_escape, _rst_literal, _rst_table)
+_MD = _Markup(lambda t: f"### {_md_escape(t)}", _md_escape, _md_code, _md_table)
