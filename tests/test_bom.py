@@ -175,8 +175,11 @@ def test_infeasible_block_lists_its_closest_design_marked() -> None:
 
 
 def test_block_with_no_design_gives_one_row() -> None:
-    # 150 ms needs RC near 0.14 s; the default ranges reach 1 MΩ × 100 nF = 0.1 s
-    res = _solve("oneshot relay_hold:\n  width 150 ms ±8%\n  supply 12 V ±5%\n  refs R R1\n")
+    # 150 ms needs RC near 0.14 s; these ranges reach 1 MΩ × 100 nF = 0.1 s
+    res = _solve(
+        "oneshot relay_hold:\n  width 150 ms ±8%\n  supply 12 V ±5%\n  refs R R1\n"
+        "  capacitors E12 5% C0G, 100p to 100n\n"
+    )
     assert res.block("relay_hold").best is None
     (row,) = bom_rows(res)
     assert row[:2] == ("—", "relay_hold")

@@ -128,6 +128,9 @@ WHITESPACE = [" ", "  ", "\t", " \f ", "\u00a0"]
 #: and part references and board designators, for 'refs' (issue 13).
 WORDS = ["cmos", "bipolar", "E24", "E96", "C0G", "X7R", '"a.tspec"']
 WORDS += ["R", "RA", "C1", "R12", "C7", "r3", "R0"]
+#: ... and the word that lists capacitor technologies, with film and electrolytic kinds
+#: (issue 10).
+WORDS += ["or", "PP", "AL"]
 #: Characters a comment may hold: printable ASCII and a sample of the rest of Unicode
 #: (line breaks excluded; the odd separators of :data:`ODD` included on purpose).
 COMMENT_CHARS = [chr(c) for c in range(32, 127)]

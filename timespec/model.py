@@ -18,6 +18,7 @@ from timespec.parts.devices import GateClass, TimerClass
 
 __all__ = [
     "BLOCK_KINDS",
+    "BUILTIN_CAPACITORS",
     "DESIGNATOR",
     "MAX_SAMPLES",
     "MAX_SEED",
@@ -31,6 +32,7 @@ __all__ = [
     "Spec",
     "Statistics",
     "Window",
+    "builtin_resistor_high",
 ]
 
 #: The circuit families a block can describe.
@@ -217,6 +219,55 @@ def _check_policy(tolerance: float, low: float, high: float, ageing: float) -> N
         raise ValueError("an ageing bound is written as a size, e.g. 0.1 %/year")
 
 
+#: The built-in capacitor technologies, used when no ``capacitors`` statement is given
+#: (crystal blocks keep the single :class:`CapacitorPolicy` default).  The solver picks
+#: across them and prefers the steadier dielectric when several meet
+#: (:func:`timespec.parts.dielectrics.steadiness`).  Grades and value ranges are common
+#: practice, from memory: C0G chip ceramics in 5 % up to about 10 nF in small cases;
+#: polypropylene film in 2 % precision grades from 1 nF to about 1 µF; polyester film in
+#: 5 % above that to about 10 µF; aluminium electrolytics in 20 % and E6 values from
+#: 1 µF, with the class leakage rule 0.01·CV or 3 µA
+#: (:data:`timespec.families.capacitors.ELECTROLYTIC_LEAKAGE`).
+BUILTIN_CAPACITORS: tuple[CapacitorPolicy, ...] = (
+    CapacitorPolicy(series="E12", tolerance=0.05, dielectric="C0G", low=100e-12, high=10e-9),
+    CapacitorPolicy(series="E24", tolerance=0.02, dielectric="PP", low=1e-9, high=1e-6),
+    CapacitorPolicy(series="E12", tolerance=0.05, dielectric="PET", low=1.2e-6, high=10e-6),
+    CapacitorPolicy(series="E6", tolerance=0.20, dielectric="AL", low=1e-6, high=4.7e-3),
+)
+
+#: Tops of the built-in resistor range of a timer block: the classic 1 MΩ, or 10 MΩ when
+#: the timer class's worst threshold current through it drops at most
+#: :data:`THRESHOLD_DROP_SHARE` of the threshold's headroom (common practice: the input
+#: current of a timing node should stay a small fraction of its charge current).
+RESISTOR_TOPS: tuple[float, float] = (1e6, 10e6)
+#: Largest share of the threshold headroom (a third of the lowest supply) that the
+#: threshold current may drop across the built-in top resistor (common practice).
+THRESHOLD_DROP_SHARE = 0.01
+
+
+def builtin_resistor_high(timer: TimerClass | None, supply_low: float) -> float:
+    """The top of the built-in resistor range for a block's timer class.
+
+    Parameters
+    ----------
+    timer
+        The block's timer class, or ``None`` (no timer: the classic top).
+    supply_low
+        The lowest supply, V.
+
+    Returns
+    -------
+    float
+        Ω: 10 MΩ when ``i_threshold_max · 10 MΩ`` is at most 1 % of ``supply_low / 3``
+        (a CMOS class), else 1 MΩ (a bipolar class, whose 250 nA would drop 2.5 V).
+    """
+    low, high = RESISTOR_TOPS
+    if timer is None:
+        return low
+    headroom = supply_low / 3.0
+    return high if timer.i_threshold_max * high <= THRESHOLD_DROP_SHARE * headroom else low
+
+
 @dataclass(frozen=True)
 class PinnedPart:
     """A part the spec fixes: verified, not chosen.
@@ -373,6 +424,10 @@ class Block:
         Board reference designators by part reference (``{"R": ("R12",), "C": ("C7",)}``),
         from the ``refs`` statement; a second designator names the second part of a
         series/parallel pair.  Empty when the spec gives none.
+    capacitor_options
+        Further capacitor technologies the solver may choose from besides
+        ``capacitors`` (each with its own series, tolerance, dielectric and value
+        range); empty when there is one.  See :meth:`capacitor_policies`.
     """
 
     kind: str
@@ -389,6 +444,7 @@ class Block:
     pos: Pos | None = field(default=None, compare=False)
     positions: Mapping[str, Pos] = field(default_factory=dict, compare=False)
     refs: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
+    capacitor_options: tuple[CapacitorPolicy, ...] = ()
 
     def __post_init__(self) -> None:
         if self.kind not in BLOCK_KINDS:
@@ -465,6 +521,16 @@ class Block:
         """
         value = self.settings.get(key)
         return value if isinstance(value, str) else None
+
+    def capacitor_policies(self) -> tuple[CapacitorPolicy, ...]:
+        """Every capacitor technology the solver may use, ``capacitors`` first.
+
+        Returns
+        -------
+        tuple of CapacitorPolicy
+            ``(capacitors, *capacitor_options)``.
+        """
+        return (self.capacitors, *self.capacitor_options)
 
     def pinned_part(self, ref: str) -> PinnedPart | None:
         """The pinned part with this reference, or ``None``.

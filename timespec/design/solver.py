@@ -22,6 +22,7 @@ closest candidate (least excursion outside the window) is reported with it.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from collections import defaultdict
 
@@ -36,6 +37,7 @@ from timespec.analysis import (
     worst_case,
     worst_case_many,
 )
+from timespec.design.causes import infeasible_causes
 from timespec.design.reach import range_cause
 from timespec.design.result import BlockResult, Candidate, OutputResult, Result
 from timespec.errors import SpecValueError
@@ -43,11 +45,21 @@ from timespec.families import family
 from timespec.families.goals import window_score
 from timespec.families.protocol import Family
 from timespec.language.arguments import error_at
-from timespec.model import Block, Spec
+from timespec.model import Block, CapacitorPolicy, Spec
+from timespec.numbers import format_quantity
 from timespec.parts import series as eseries
+from timespec.parts.dielectrics import steadiness
 from timespec.parts.part import Design
 
-__all__ = ["SHORTLIST", "evaluate_design", "rank_key", "solve", "solve_block"]
+__all__ = [
+    "SHORTLIST",
+    "evaluate_design",
+    "rank_key",
+    "solve",
+    "solve_block",
+    "technology_blocks",
+    "technology_text",
+]
 
 #: How many candidates get the full worst-case analysis.
 SHORTLIST = 8
@@ -341,6 +353,13 @@ def _condition_notes(block: Block) -> list[str]:
 def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
     """Choose (or check) the parts of one block at worst case.
 
+    A block offering several capacitor technologies (:attr:`Block.capacitor_options`)
+    is solved once per technology; the steadiest technology that meets is chosen
+    (:func:`timespec.parts.dielectrics.steadiness`), else the one whose closest
+    design has the smallest worst violation.  The result's block is then the
+    single-technology block solved, and the best designs of the other technologies
+    are among the alternatives.
+
     Parameters
     ----------
     block
@@ -353,6 +372,112 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
     BlockResult
         Verdict, best design, alternatives and the factors of the best design.
     """
+    variants = technology_blocks(block)
+    if len(variants) == 1:
+        return _solve_technology(variants[0], shortlist=shortlist)
+    results = [_solve_technology(b, shortlist=shortlist) for b in variants]
+    return _choose_technology(block, results, shortlist)
+
+
+def technology_blocks(block: Block) -> tuple[Block, ...]:
+    """One single-technology block per capacitor technology a block offers.
+
+    Parameters
+    ----------
+    block
+        The block.
+
+    Returns
+    -------
+    tuple of Block
+        ``(block,)`` when it offers one technology.  When it pins a capacitor, the
+        one technology that describes the pinned part: the first of its dielectric,
+        else the first whose range holds its value, else the first.
+    """
+    policies = block.capacitor_policies()
+    if len(policies) == 1:
+        return (block,)
+    pinned = [p for p in block.pinned if p.ref.startswith("C")]
+    if pinned:
+        part = pinned[0]
+        fits = [p for p in policies if p.dielectric == part.dielectric] or [
+            p for p in policies if p.low <= part.value <= p.high
+        ]
+        chosen = (fits or list(policies))[0]
+        return (dataclasses.replace(block, capacitors=chosen, capacitor_options=()),)
+    return tuple(dataclasses.replace(block, capacitors=p, capacitor_options=()) for p in policies)
+
+
+def technology_text(policy: CapacitorPolicy) -> str:
+    """A capacitor technology in words, e.g. ``"PP 2 % E24 (1 nF…1 µF)"``.
+
+    Parameters
+    ----------
+    policy
+        One technology.
+
+    Returns
+    -------
+    str
+        Dielectric, tolerance, series and value range.
+    """
+    low, high = (format_quantity(v, "capacitance") for v in (policy.low, policy.high))
+    return f"{policy.dielectric} {policy.tolerance * 100:g} % {policy.series} ({low}…{high})"
+
+
+def _choose_technology(block: Block, results: list[BlockResult], shortlist: int) -> BlockResult:
+    """The result of the steadiest technology that meets, else of the closest design."""
+    order = range(len(results))
+    meeting = [i for i in order if results[i].verdict == "meets"]
+    if meeting:
+        pick = min(meeting, key=lambda i: (steadiness(results[i].block.capacitors.dielectric), i))
+    else:
+        tried = [i for i in order if results[i].best is not None]
+        if not tried:
+            return _solve_technology(block, shortlist=shortlist)
+        pick = min(tried, key=lambda i: (rank_key(_best(results[i])), i))
+    chosen = results[pick]
+    best = _best(chosen)
+    others: list[Candidate] = []
+    for i in order:
+        r = results[i]
+        if i == pick or r.best is None:
+            continue
+        tech = technology_text(r.block.capacitors)
+        if r.verdict == "meets":
+            why = f"meets with {tech} capacitors; {chosen.block.capacitors.dielectric} is steadier"
+        else:
+            why = f"with {tech} capacitors: {_reason(r.best, best)}"
+        others.append(Candidate(r.best.design, r.best.outputs, r.best.findings, why))
+    meets_too = [technology_text(results[i].block.capacitors) for i in meeting if i != pick]
+    empty = [technology_text(r.block.capacitors) for r in results if r.best is None]
+    note = f"capacitors: {technology_text(chosen.block.capacitors)}"
+    if chosen.verdict == "meets":
+        note += f", the steadiest of the {len(results)} technologies offered that meets"
+        if meets_too:
+            note += f" (also meets: {'; '.join(meets_too)})"
+    else:
+        note += f", the closest of the {len(results)} technologies offered"
+    if empty:
+        note += f"; no value near the requirement in {'; '.join(empty)}"
+    extra = dict(chosen.extra)
+    extra["candidates"] = sum(int(r.extra.get("candidates", 0)) for r in results)
+    extra["technologies"] = len(results)
+    return dataclasses.replace(
+        chosen,
+        alternatives=(*chosen.alternatives, *others),
+        notes=(note, *chosen.notes),
+        extra=extra,
+    )
+
+
+def _best(result: BlockResult) -> Candidate:
+    assert result.best is not None
+    return result.best
+
+
+def _solve_technology(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
+    """Solve a block of one capacitor technology (see :func:`solve_block`)."""
     fam = family(block.kind)
     designs = fam.candidates(block)
     mode = "checked" if designs and all(p.pinned for p in designs[0].parts) else "solved"
@@ -387,6 +512,11 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
         verdict = "meets"
     elif mode == "checked":
         verdict = "fails"
+        notes.extend(
+            infeasible_causes(
+                block, best, facs_of.get(best.design) or fam.factors(block, best.design)
+            )
+        )
     else:
         verdict = "infeasible"
         if best.excess == 0:
@@ -395,9 +525,14 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
                 "case but breaks a design rule (see the findings); it is shown"
             )
         else:
-            notes.append(
-                f"none of the {len(designs)} candidate designs from the allowed parts meets "
-                "the requirement at worst case; the closest is shown"
+            notes.extend(
+                infeasible_causes(
+                    block, best, facs_of.get(best.design) or fam.factors(block, best.design)
+                )
+                or (
+                    f"none of the {len(designs)} candidate designs from the allowed parts meets "
+                    "the requirement at worst case; the closest is shown",
+                )
             )
     for cand in (best, *alternatives):
         _check_finite(block, cand, verdict == "meets" and cand is best)

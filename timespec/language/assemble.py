@@ -10,6 +10,7 @@ timer class's range, a pinned part the circuit does not have).
 
 from __future__ import annotations
 
+import dataclasses
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -48,6 +49,7 @@ from timespec.language.values import Text
 from timespec.language.vocabulary import KEYWORDS
 from timespec.model import (
     BLOCK_KINDS,
+    BUILTIN_CAPACITORS,
     Block,
     CapacitorPolicy,
     Conditions,
@@ -58,6 +60,7 @@ from timespec.model import (
     Spec,
     Statistics,
     Window,
+    builtin_resistor_high,
 )
 from timespec.parts.devices import GATE_CLASSES, TIMER_CLASSES, TimerClass
 
@@ -578,6 +581,52 @@ def _policy(
         raise error_at(SpecValueError, str(exc), pos) from None
 
 
+def _resistor_policy(
+    sec: _Section, defaults: _Section, timer: TimerClass | None, supply: Window
+) -> ResistorPolicy:
+    """The resistor policy; a range nobody gives tops out where the timer class allows.
+
+    See :func:`timespec.model.builtin_resistor_high`: 10 MΩ for a timer class whose
+    threshold current allows it (CMOS), else 1 MΩ.
+    """
+    given = any(
+        "high" in s.readings["resistors"][0] for s in (defaults, sec) if "resistors" in s.readings
+    )
+    policy: ResistorPolicy = _policy(ResistorPolicy, sec, defaults, "resistors")
+    if given:
+        return policy
+    return dataclasses.replace(policy, high=builtin_resistor_high(timer, supply.low))
+
+
+def _capacitor_policies(sec: _Section, defaults: _Section) -> tuple[CapacitorPolicy, ...]:
+    """The capacitor technologies of a block, the first one its ``capacitors``.
+
+    No ``capacitors`` statement anywhere: the built-in technologies
+    (:data:`timespec.model.BUILTIN_CAPACITORS`), or the single default policy for a
+    crystal (load capacitors are class 1 ceramics).  A statement listing several
+    technologies (``... or ...``) replaces what came before it; a statement of one
+    technology merges item by item into each technology before it (a block's
+    ``capacitors rated 16 V`` rates every technology of its defaults), items nobody
+    gives coming from :class:`~timespec.model.CapacitorPolicy`'s defaults.  A crystal
+    keeps the first technology of a list.
+    """
+    stated = [s.readings["capacitors"] for s in (defaults, sec) if "capacitors" in s.readings]
+    if not stated:
+        return (CapacitorPolicy(),) if sec.kind == "crystal" else BUILTIN_CAPACITORS
+    current: list[dict[str, Any]] = [{}]
+    for value, _pos, _ in stated:
+        if isinstance(value, tuple):
+            current = [dict(v) for v in value]
+        else:
+            current = [{**c, **value} for c in current]
+    if sec.kind == "crystal":
+        current = current[:1]
+    try:
+        return tuple(CapacitorPolicy(**fields) for fields in current)
+    except ValueError as exc:
+        raise error_at(SpecValueError, str(exc), stated[-1][1]) from None
+
+
 def _finish(sec: _Section, defaults: _Section) -> Block:
     assert sec.name is not None
     where = f"block {sec.name!r}"
@@ -617,8 +666,7 @@ def _finish(sec: _Section, defaults: _Section) -> Block:
     life = life_item[0] if life_item else 0.0
     conditions = Conditions(supply, ambient[0], ambient[1], life)
 
-    resistors = _policy(ResistorPolicy, sec, defaults, "resistors")
-    capacitors = _policy(CapacitorPolicy, sec, defaults, "capacitors")
+    technologies = _capacitor_policies(sec, defaults)
 
     timer: TimerClass | None = None
     if sec.kind in ("oneshot", "astable"):
@@ -633,6 +681,7 @@ def _finish(sec: _Section, defaults: _Section) -> Block:
                 supply_pos,
                 _class_hint(supply, TIMER_CLASSES, "timer", timer.name),
             )
+    resistors = _resistor_policy(sec, defaults, timer, supply)
     gate = None
     # A relaxation oscillator is a gate (defaults apply); a delay block names the gate
     # that watches its node only by its own statement (a default meant for the
@@ -705,7 +754,8 @@ def _finish(sec: _Section, defaults: _Section) -> Block:
             requirements=tuple(sec.requirements),
             conditions=conditions,
             resistors=resistors,
-            capacitors=capacitors,
+            capacitors=technologies[0],
+            capacitor_options=technologies[1:],
             timer=timer,
             gate=gate,
             pinned=pinned,

@@ -343,9 +343,66 @@ def read_policy(part: str) -> Reader:
                 example_hint(stmt.keyword),
             )
         terms = [t for arg in stmt.args for t in arg]
-        return Reading(part, _policy_items(stmt, part, terms))
+        groups = _technologies(stmt, part, terms)
+        if len(groups) == 1:
+            return Reading(part, _policy_items(stmt, part, groups[0]))
+        return Reading(part, tuple(_policy_items(stmt, part, g) for g in groups))
 
     return read
+
+
+def _technologies(stmt: Statement, part: str, terms: Sequence[Term]) -> list[list[Term]]:
+    """Split a policy's items at the word ``or``: one group per capacitor technology.
+
+    ``capacitors C0G 5% 100p to 10n, or PP 2% E24 1n to 1u`` lists two technologies.
+    An ``or`` between a ``k of CV`` leakage rule and a current is the rule's floor
+    (``leakage 0.01 of CV or 3 uA``), not a new technology.
+
+    Parameters
+    ----------
+    stmt
+        The policy statement (for messages).
+    part
+        ``"resistors"`` or ``"capacitors"``.
+    terms
+        Every item term of the statement.
+
+    Returns
+    -------
+    list of list of Term
+        One group of items per technology, in the order written.
+
+    Raises
+    ------
+    SpecError
+        When ``or`` stands in a resistor policy, or at either end or twice in a row.
+    """
+    groups: list[list[Term]] = [[]]
+    for i, term in enumerate(terms):
+        if not (isinstance(term, Word) and term.text.lower() == "or"):
+            groups[-1].append(term)
+            continue
+        nxt = terms[i + 1] if i + 1 < len(terms) else None
+        if i > 0 and isinstance(terms[i - 1], Fraction) and isinstance(nxt, Quantity):
+            groups[-1].append(term)  # the floor of a leakage rule
+            continue
+        if part == "resistors":
+            raise error_at(
+                SpecValueError,
+                "a resistor policy describes one kind of resistor; 'or' lists capacitor "
+                "technologies",
+                term.pos,
+                "give one resistor policy, e.g. resistors E96 1% 100 ppm/K, 1k to 1M",
+            )
+        if not groups[-1] or nxt is None:
+            raise error_at(
+                SpecValueError,
+                f"'or' in '{stmt.keyword}' stands between two capacitor technologies",
+                term.pos,
+                "e.g. capacitors C0G 5% 100p to 10n, or PP 2% E24 1n to 1u",
+            )
+        groups.append([])
+    return groups
 
 
 def read_use(stmt: Statement) -> Reading:

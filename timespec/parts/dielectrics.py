@@ -43,6 +43,7 @@ __all__ = [
     "BIAS_LOSS_CEILING",
     "REFERENCE_TEMPERATURE",
     "RESISTOR_TCR_PPM",
+    "STEADINESS_ORDER",
     "Class2Group",
     "Dielectric",
     "Family",
@@ -55,6 +56,7 @@ __all__ = [
     "class2_group",
     "dielectric",
     "known_names",
+    "steadiness",
     "temperature_drift_bounds",
 ]
 
@@ -341,6 +343,38 @@ def dielectric(name: str) -> Dielectric:
         f"unknown dielectric {name!r}; known names: {', '.join(known_names())} "
         "(or any EIA-198 class 2 code such as X7R)"
     )
+
+
+#: Order of the dielectric families from steadiest to least steady: class 1 ceramics
+#: (a small, linear tempco, no bias or ageing loss), film, class 2 ceramics (bias,
+#: ageing and a wide envelope), aluminium electrolytics (wide tolerance, leakage, wear
+#: out).  Common practice.
+STEADINESS_ORDER: Final[tuple[Family, ...]] = ("class1", "film", "class2", "electrolytic")
+
+
+def steadiness(name: str) -> tuple[int, float]:
+    """Sort key of a dielectric by steadiness: smaller is steadier.
+
+    Parameters
+    ----------
+    name
+        A dielectric name, e.g. ``"C0G"`` or ``"PP"``.
+
+    Returns
+    -------
+    tuple
+        The family's place in :data:`STEADINESS_ORDER`, then the size of its
+        temperature behaviour (the larger tempco bound in ppm/K for linear kinds,
+        the larger envelope change for the others), so C0G ranks before U2J and
+        PP before PET.
+    """
+    d = dielectric(name)
+    size = (
+        max(abs(d.tc_ppm_low), abs(d.tc_ppm_high))
+        if d.linear
+        else max(abs(d.drift_low), abs(d.drift_high))
+    )
+    return STEADINESS_ORDER.index(d.family), size
 
 
 def _check_temp(what: str, t: float) -> float:
