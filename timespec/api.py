@@ -132,12 +132,17 @@ def _no_fix_note(b: BlockResult) -> str:
             f"{searched}: every window is met, but the design breaks a design rule "
             f"({', '.join(rules)}) that no part change removes; see the finding"
         )
+    from timespec.design.causes import diagnose
+
+    causes = "; ".join(c.brief for c in diagnose(b.block, best, b.factors)) if best else ""
     if rules:
         return (
             f"{searched}: the closest design misses its window and breaks a design rule "
-            f"({', '.join(rules)})"
+            f"({', '.join(rules)})" + (f"; {causes}" if causes else "")
         )
-    return f"{searched}: the requirement asks for less spread than the circuit class gives"
+    if causes:
+        return f"{searched}: {causes}"
+    return f"{searched}; the closest design's worst case is shown against the requirement"
 
 
 def _with_fixes(result: Result) -> Result:

@@ -20,7 +20,7 @@ from timespec.analysis import nominal_inputs
 from timespec.families import family
 from timespec.families.candidates import capacitor_part, resistor_part
 from timespec.families.goals import target
-from timespec.model import Block
+from timespec.model import Block, CapacitorPolicy
 from timespec.numbers import format_quantity
 from timespec.parts.part import Design
 from timespec.parts.rkm import format_rkm
@@ -39,11 +39,13 @@ _VARIANT = {"astable": "classic"}
 _SCALING = ("width", "delay", "period", "high", "low", "frequency")
 
 
-def _nominal(block: Block, r: float, c: float, quantity: str) -> float:
+def _nominal(
+    block: Block, r: float, c: float, quantity: str, policy: CapacitorPolicy | None = None
+) -> float:
     """The family's nominal ``quantity`` with every resistor at ``r`` and C at ``c``."""
     fam = family(block.kind)
     parts = [resistor_part(ref, r, block.resistors) for ref in _RESISTORS[block.kind]]
-    parts.append(capacitor_part("C", c, block.capacitors))
+    parts.append(capacitor_part("C", c, policy or block.capacitors))
     design = Design(tuple(parts), _VARIANT.get(block.kind, ""))
     x = nominal_inputs(fam.factors(block, design))
     with np.errstate(all="ignore"):
@@ -58,7 +60,9 @@ def range_cause(block: Block) -> str | None:
     ----------
     block
         An RC block (one-shot, astable, delay, relaxation) whose family found no
-        candidate.
+        candidate.  With several capacitor technologies
+        (:meth:`~timespec.model.Block.capacitor_policies`) the parts reach from the
+        smallest capacitor of any of them to the largest of any.
 
     Returns
     -------
@@ -75,9 +79,12 @@ def range_cause(block: Block) -> str | None:
     if req is None:
         return None
     goal = target(req.window)
-    rp, cp = block.resistors, block.capacitors
-    lo = _nominal(block, rp.low, cp.low, req.quantity)
-    hi = _nominal(block, rp.high, cp.high, req.quantity)
+    rp = block.resistors
+    policies = block.capacitor_policies()
+    c_low = min(policies, key=lambda p: p.low)
+    c_high = max(policies, key=lambda p: p.high)
+    lo = _nominal(block, rp.low, c_low.low, req.quantity, c_low)
+    hi = _nominal(block, rp.high, c_high.high, req.quantity, c_high)
     if not (math.isfinite(goal) and goal > 0 and all(math.isfinite(v) and v > 0 for v in (lo, hi))):
         return None
     # frequency falls as R·C grows: compare in time scale (1/f)
@@ -88,28 +95,32 @@ def range_cause(block: Block) -> str | None:
         return None
     kind = "frequency" if inverse else "time"
     reach = f"{format_quantity(min(lo, hi), kind)} … {format_quantity(max(lo, hi), kind)}"
+    c_ranges = ", ".join(
+        f"{format_rkm(p.low, 'capacitance')}…{format_rkm(p.high, 'capacitance')}"
+        + (f" {p.dielectric}" if len(policies) > 1 else "")
+        for p in policies
+    )
     ranges = (
-        f"R {format_rkm(rp.low, 'resistance')}…{format_rkm(rp.high, 'resistance')}, "
-        f"C {format_rkm(cp.low, 'capacitance')}…{format_rkm(cp.high, 'capacitance')}"
+        f"R {format_rkm(rp.low, 'resistance')}…{format_rkm(rp.high, 'resistance')}, C {c_ranges}"
     )
     if need > scale_hi:
         ratio = need / scale_hi
-        c_need, r_need = cp.high * ratio, rp.high * ratio
+        c_need, r_need = c_high.high * ratio, rp.high * ratio
         at = (
             f"C ≈ {format_quantity(c_need, 'capacitance')} at R = "
             f"{format_quantity(rp.high, 'resistance')}, or R ≈ "
             f"{format_quantity(r_need, 'resistance')} at C = "
-            f"{format_quantity(cp.high, 'capacitance')}"
+            f"{format_quantity(c_high.high, 'capacitance')}"
         )
         fix = "widen the capacitor range upward (a film or electrolytic part) or the resistor range"
     else:
         ratio = need / scale_lo
-        c_need, r_need = cp.low * ratio, rp.low * ratio
+        c_need, r_need = c_low.low * ratio, rp.low * ratio
         at = (
             f"C ≈ {format_quantity(c_need, 'capacitance')} at R = "
             f"{format_quantity(rp.low, 'resistance')}, or R ≈ "
             f"{format_quantity(r_need, 'resistance')} at C = "
-            f"{format_quantity(cp.low, 'capacitance')}"
+            f"{format_quantity(c_low.low, 'capacitance')}"
         )
         fix = "widen the capacitor or resistor range downward"
     label = req.quantity
