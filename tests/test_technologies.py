@@ -225,6 +225,15 @@ def test_a_pinned_capacitor_takes_the_technology_that_describes_it() -> None:
     # by dielectric, whatever the value
     (alone,) = technology_blocks(_block(hold + "  use C 4n7 PP\n"))
     assert alone.capacitors.dielectric == "PP"
+    # unstated, and several make the value: the least steady, never a better part than
+    # the board may carry (10 µF: PET film or electrolytic; 4.7 nF: C0G or PP film)
+    for value, dielectric in (("10u", "AL"), ("4n7", "PP")):
+        block = _block(hold + f"  use C {value}\n")
+        (alone,) = technology_blocks(block)
+        assert alone.capacitors.dielectric == dielectric
+        note = solve_block(block).notes[0]
+        assert note.startswith(f"C's dielectric is not stated: it is taken as {dielectric} ")
+        assert f"state it, e.g. 'use C {value} PET 5%'" in note
 
 
 def test_no_technology_reaching_still_names_the_range() -> None:

@@ -50,6 +50,7 @@ from timespec.numbers import format_quantity
 from timespec.parts import series as eseries
 from timespec.parts.dielectrics import steadiness
 from timespec.parts.part import Design
+from timespec.parts.rkm import format_rkm
 
 __all__ = [
     "SHORTLIST",
@@ -374,7 +375,9 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
     """
     variants = technology_blocks(block)
     if len(variants) == 1:
-        return _solve_technology(variants[0], shortlist=shortlist)
+        result = _solve_technology(variants[0], shortlist=shortlist)
+        assumed = _assumed_technology(block, variants[0])
+        return dataclasses.replace(result, notes=(assumed, *result.notes)) if assumed else result
     results = [_solve_technology(b, shortlist=shortlist) for b in variants]
     return _choose_technology(block, results, shortlist)
 
@@ -400,12 +403,33 @@ def technology_blocks(block: Block) -> tuple[Block, ...]:
     pinned = [p for p in block.pinned if p.ref.startswith("C")]
     if pinned:
         part = pinned[0]
-        fits = [p for p in policies if p.dielectric == part.dielectric] or [
-            p for p in policies if p.low <= part.value <= p.high
-        ]
-        chosen = (fits or list(policies))[0]
+        same = [p for p in policies if p.dielectric == part.dielectric]
+        # an unstated dielectric: the least steady technology that makes the value, so
+        # that a verdict on the board never rests on a better part than it may carry
+        holds = sorted(
+            (p for p in policies if p.low <= part.value <= p.high),
+            key=lambda p: steadiness(p.dielectric),
+            reverse=True,
+        )
+        chosen = (same or holds or list(policies))[0]
         return (dataclasses.replace(block, capacitors=chosen, capacitor_options=()),)
     return tuple(dataclasses.replace(block, capacitors=p, capacitor_options=()) for p in policies)
+
+
+def _assumed_technology(block: Block, solved: Block) -> str | None:
+    """The note for a pinned capacitor whose dielectric a list of technologies supplies."""
+    if len(block.capacitor_policies()) == 1:
+        return None
+    part = next((p for p in block.pinned if p.ref.startswith("C")), None)
+    if part is None or part.dielectric is not None:
+        return None
+    value = format_quantity(part.value, "capacitance")
+    code = format_rkm(part.value, "capacitance")
+    return (
+        f"{part.ref}'s dielectric is not stated: it is taken as "
+        f"{technology_text(solved.capacitors)}, the least steady technology offered that "
+        f"makes {value}; state it, e.g. 'use {part.ref} {code} PET 5%'"
+    )
 
 
 def technology_text(policy: CapacitorPolicy) -> str:
