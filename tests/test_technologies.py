@@ -271,20 +271,13 @@ _ONESHOTS = [
 ]
 
 
-def _check_sensible(result_block: Block, parts: dict[str, float]) -> None:
-    rp, cp = result_block.resistors, result_block.capacitors
-    for ref, value in parts.items():
-        if ref.startswith("R"):
-            assert rp.low <= value <= rp.high
-        else:
-            d = dielectrics.dielectric(cp.dielectric)
-            assert cp.low <= value <= cp.high and d.min_farads <= value <= d.max_farads
+def _everyday(kind: str, statement: str, timer: str) -> tuple[float, dict[str, float], str]:
+    """Solve one everyday block with no policy: it meets with sensible parts.
 
-
-@pytest.mark.parametrize(("timer", "width", "tol"), _ONESHOTS)
-def test_everyday_one_shots_meet_with_no_defaults(timer: str, width: str, tol: str) -> None:
+    Returns the nominal of its requirement's output, the part values and the variant.
+    """
     text = (
-        f"oneshot rack_pulse:\n  width {width} ±{tol}\n  supply 12 V ±5%\n"
+        f"{kind} rack_timing:\n  {statement}\n  supply 12 V ±5%\n"
         f"  ambient 0 degC to 50 degC\n  timer {timer}\n"
     )
     result = solve_block(_block(text))
@@ -292,10 +285,23 @@ def test_everyday_one_shots_meet_with_no_defaults(timer: str, width: str, tol: s
     assert result.best is not None
     assert not any(f.severity == "error" for f in result.best.findings)
     parts = {p.ref: p.value for p in result.best.design.parts}
-    _check_sensible(result.block, parts)
-    (out,) = (o for o in result.best.outputs if o.name == "width")
+    rp, cp = result.block.resistors, result.block.capacitors
+    for ref, value in parts.items():
+        if ref.startswith("R"):
+            assert rp.low <= value <= rp.high
+        else:  # inside its technology and the values commonly made in its dielectric
+            d = dielectrics.dielectric(cp.dielectric)
+            assert cp.low <= value <= cp.high and d.min_farads <= value <= d.max_farads
+    quantity = statement.split()[0]
+    (out,) = (o for o in result.best.outputs if o.name == quantity)
+    return out.nominal, parts, result.best.design.variant
+
+
+@pytest.mark.parametrize(("timer", "width", "tol"), _ONESHOTS)
+def test_everyday_one_shots_meet_with_no_defaults(timer: str, width: str, tol: str) -> None:
+    nominal, parts, _ = _everyday("oneshot", f"width {width} ±{tol}", timer)
     # 555 monostable law (timer handbook) within the threshold-current and delay terms
-    assert math.isclose(out.nominal, parts["R"] * parts["C"] * math.log(3.0), rel_tol=0.05)
+    assert math.isclose(nominal, parts["R"] * parts["C"] * math.log(3.0), rel_tol=0.05)
 
 
 _ASTABLES = [
@@ -311,21 +317,11 @@ _ASTABLES = [
 
 @pytest.mark.parametrize(("timer", "freq", "tol"), _ASTABLES)
 def test_everyday_astables_meet_with_no_defaults(timer: str, freq: str, tol: str) -> None:
-    text = (
-        f"astable panel_blink:\n  frequency {freq} ±{tol}\n  supply 12 V ±5%\n"
-        f"  ambient 0 degC to 50 degC\n  timer {timer}\n"
-    )
-    result = solve_block(_block(text))
-    assert result.verdict == "meets", result.notes
-    assert result.best is not None
-    assert not any(f.severity == "error" for f in result.best.findings)
-    parts = {p.ref: p.value for p in result.best.design.parts}
-    _check_sensible(result.block, parts)
-    if result.best.design.variant == "classic":
-        (out,) = (o for o in result.best.outputs if o.name == "frequency")
+    nominal, parts, variant = _everyday("astable", f"frequency {freq} ±{tol}", timer)
+    if variant == "classic":
         law = 1.0 / ((parts["RA"] + 2 * parts["RB"]) * parts["C"] * math.log(2.0))
         # the classic law (timer handbook), within the output delay and discharge terms
-        assert math.isclose(out.nominal, law, rel_tol=0.08)
+        assert math.isclose(nominal, law, rel_tol=0.08)
 
 
 def test_a_chosen_technology_block_solves_alone_to_the_same_design() -> None:
