@@ -8,6 +8,8 @@ tolerances and from handbook formulas, never copied from the output:
   the supply (generic 555 timer datasheets; any timer handbook), so a timing
   error ``±e`` of the class's threshold ratio means ``ln(1/(1 − r)) = (1 ± e)·ln 3``;
 * the charging current at the threshold by Ohm's law, ``(V − V_th) / R``;
+* a generic CMOS logic input's current, up to ±1 µA over temperature (74HC-class
+  datasheets, common practice);
 * the aluminium electrolytic leakage limit ``0.01·C·V_rated or 3 µA, whichever
   is greater`` (generic aluminium electrolytic datasheets, IEC 60384-4 style);
 * the Schmitt-inverter RC oscillator ``T = R·C·(ln((V − VT−)/(V − VT+)) +
@@ -280,6 +282,122 @@ def test_stated_leakage_that_moves_the_timing_gives_the_currents() -> None:
     stretch = math.log((v - 101e-9 * rr) / (v - 101e-9 * rr - th * v)) / math.log(1 / (1 - th))
     assert moved / 100 == pytest.approx(_half(stretch), rel=0.1)
     assert moved > 4
+
+
+# --- leakage at an RC delay ---------------------------------------------------------
+
+# The power-on reset of a burn-in rack's slot controller: a 10 MΩ resistor charging an
+# electrolytic into a CMOS reset input, held a few seconds while the slot's supplies settle.
+_SLOT_POR = """delay slot_por:
+  supply 5 V ±5%
+  ambient 0 degC to 70 degC
+  resistors E24 1% 100 ppm/K, 10M to 10M
+  capacitors E6 20% AL, 1u to 10u
+  delay 5 s to 15 s
+  threshold 0.5 to 0.6 of supply
+  use R 10M, C 1u
+"""
+
+
+def test_rc_delay_stalled_by_leakage_gives_the_currents() -> None:
+    result = solve_block(_block(_SLOT_POR))
+    assert result.verdict == "fails" and result.best is not None
+    note = _cause(result, "the timing node cannot reach its threshold")
+    m = re.fullmatch(
+        rf"the timing node cannot reach its threshold: the drain of {_NUM} µA \(assumed input "
+        rf"current {_NUM} µA, capacitor leakage {_NUM} µA\) exceeds the charge current left at "
+        rf"the threshold, \(4.75 V − {_NUM} V\) / {_NUM} MΩ \(10 MΩ at the top of its "
+        rf"tolerance\) = {_NUM} nA; use a smaller R with a larger C, or a capacitor that leaks "
+        rf"less \(film instead of electrolytic\); the 1 µA input current is an assumed bound: "
+        rf"state `leakage` with your input's datasheet bound to lower it",
+        note,
+    )
+    assert m, note
+    drain, i_in, leak, v_th, r, charge = (float(g) for g in m.groups())
+    # a generic CMOS logic input may source or sink up to ±1 µA over temperature
+    # (74HC-class datasheets, common practice)
+    assert i_in == pytest.approx(1.0)
+    # the datasheet rule for aluminium electrolytics: 0.01·C[µF]·V_rated µA or 3 µA,
+    # whichever is greater, rated twice the top supply (the conservative default, from
+    # memory), doubled above 60 °C (common practice): 1 µF · 10.5 V gives 0.105 µA < 3 µA
+    rated = 2 * 5.25
+    assert leak * 1e-6 == pytest.approx(2 * max(0.01 * 1.0 * rated * 1e-6, 3e-6), rel=1e-3)
+    assert drain == pytest.approx(i_in + leak, abs=0.01)
+    # the highest threshold at the lowest supply: 0.6 of 4.75 V
+    assert v_th == pytest.approx(0.6 * 4.75, abs=0.005)
+    assert r == pytest.approx(10e6 * 1.01 / 1e6, rel=1e-3)
+    # Ohm's law: what is left to charge the capacitor at the threshold
+    i_charge = (4.75 - 0.6 * 4.75) / (10e6 * 1.01)
+    assert charge * 1e-9 == pytest.approx(i_charge, rel=2e-3)
+    assert drain * 1e-6 > i_charge
+    # the same stall by the Thevenin route (any circuit-theory handbook): the node settles
+    # at V − i·R, far below the threshold
+    assert 4.75 - drain * 1e-6 * 10e6 * 1.01 < 0.6 * 4.75
+    (out,) = result.best.outputs
+    assert math.isinf(out.high)
+
+
+def test_rc_delay_shifted_by_stated_leakage_gives_the_currents() -> None:
+    # the same slot controller's reset, on a humid rack board with the leakage stated
+    text = """delay slot_por:
+  supply 5 V ±5%
+  ambient 20 degC to 30 degC
+  leakage 300 nA max
+  resistors E96 1% 25 ppm/K, 1M to 10M
+  capacitors E12 1% PP, 10n to 100n
+  delay 100 ms ±10%
+  threshold 0.49 to 0.51 of supply
+"""
+    result = solve_block(_block(text))
+    assert result.verdict == "infeasible" and result.best is not None
+    note = _cause(result, "leakage moves the delay")
+    m = re.fullmatch(
+        rf"leakage moves the delay to the input threshold by about ±{_NUM} % against a ±10 % "
+        rf"window: the drain of 300 nA \(stated leakage 300 nA\) is {_NUM} % of the charge "
+        rf"current left at the threshold, \(4.75 V − {_NUM} V\) / {_NUM} MΩ \({_NUM} MΩ at "
+        rf"the top of its tolerance\) = {_NUM} µA; use a smaller R with a larger C, or a "
+        rf"capacitor that leaks less",
+        note,
+    )
+    assert m, note
+    moved, pct, v_th, r_top, r_nom, charge = (float(g) for g in m.groups())
+    r = result.best.design.part("R").value
+    assert r_nom * 1e6 == pytest.approx(r, rel=1e-3)
+    assert r_top * 1e6 == pytest.approx(r * 1.01, rel=1e-3)
+    # the highest threshold at the lowest supply, then Ohm's law for the charge current
+    assert v_th == pytest.approx(0.51 * 4.75, abs=0.005)
+    i_charge = (4.75 - 0.51 * 4.75) / (r * 1.01)
+    assert charge * 1e-6 == pytest.approx(i_charge, rel=2e-3)
+    assert pct / 100 == pytest.approx(300e-9 / i_charge, rel=2e-3)
+
+    # the drain through R shifts the charge: t = R·C·ln((V − i·R)/(V − i·R − V_th)) (first-
+    # order RC law with a Thevenin shift, any circuit-theory handbook); ±300 nA alone, as a
+    # ± about the middle, lies between its effect at the two extreme corners of supply,
+    # threshold and R tolerance, and is more than the ±10 % window
+    def shift(v: float, k: float, rr: float) -> float:
+        def t(i: float) -> float:
+            return math.log((v - i * rr) / (v - i * rr - k * v))
+
+        return _half(t(300e-9) / t(-300e-9))
+
+    low, high = shift(5.25, 0.49, r * 0.99), shift(4.75, 0.51, r * 1.01)
+    assert low - 0.001 <= moved / 100 <= high + 0.001
+    assert moved > 10
+
+
+def test_rc_delay_without_a_drain_problem_gets_no_leakage_cause() -> None:
+    # the slot reset with a film capacitor and a 1 nA input: the spread, not the drain, binds
+    text = (
+        _SLOT_POR.replace("E6 20% AL, 1u to 10u", "E6 20% PP, 1u to 10u")
+        .replace("delay 5 s to 15 s", "delay 8 s ±5%")
+        .replace("  use R 10M, C 1u\n", "  leakage 1 nA max\n  use R 10M, C 1u\n")
+    )
+    result = solve_block(_block(text))
+    assert result.verdict == "fails"
+    assert not any("leakage moves" in n or "cannot reach" in n for n in result.notes)
+    _cause(result, "the delay to the input threshold window is ±5 % but the closest")
+    # Ohm's law: 1 nA is 0.5 % of the (4.75 V − 2.85 V) / 10.1 MΩ left at the threshold
+    assert 1e-9 / ((4.75 - 0.6 * 4.75) / 10.1e6) < 0.01
 
 
 # --- timer and gate class speed ----------------------------------------------------

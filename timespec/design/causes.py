@@ -9,9 +9,11 @@ the factors behind it, and names each cause that binds, one sentence each:
   is used at (or, for a one-shot, the class's own output delay band is wider
   than the window); the class that would be fast enough is named;
 * **leakage stalling the charge**: the drain at the timing node (capacitor and
-  stated leakage plus the timer's threshold current or the gate's input
-  leakage) against the charging current left at the threshold,
-  ``(V_supply,min − V_th,max) / R``;
+  stated leakage plus the timer's threshold current, or the watching input's
+  own current for an RC delay or a relaxation oscillator) against the charging
+  current left at the highest threshold, ``(V_supply,min − V_th,max) / R``;
+  when the charge is not stalled but the drain moves the timing by more than
+  half the window, the shift is named instead;
 * **gate threshold spread**: the relaxation oscillator's window from the gate
   class's thresholds alone, every other input at nominal
   (:func:`timespec.analysis.worst_case` on that subset) is wider than the
@@ -62,6 +64,7 @@ from timespec.analysis import (
 from timespec.design.result import Candidate, OutputResult
 from timespec.families import family
 from timespec.families.capacitors import capacitor_leakage
+from timespec.families.logicinput import node_leakage_band
 from timespec.model import Block, Window
 from timespec.numbers import format_quantity
 from timespec.parts import series as eseries
@@ -84,6 +87,7 @@ _CHARGE_PATH: dict[tuple[str, str], tuple[str, ...]] = {
     ("astable", "diode"): ("RA",),
     ("astable", "feedback"): ("R",),
     ("relaxation", ""): ("R",),
+    ("delay", ""): ("R",),
 }
 #: How many contributors a spread sentence names.
 _NAMED = 3
@@ -364,12 +368,71 @@ def _charge_resistance(block: Block, design: Design) -> tuple[float, tuple[Part,
     return math.fsum(p.value * (1 + p.tolerance) for p in parts), parts
 
 
-def _threshold_fraction(block: Block) -> float | None:
+def _threshold_volts(block: Block) -> float | None:
+    """The highest threshold the timing node must reach at the lowest supply, V."""
+    v = block.conditions.supply.low
     if block.timer is not None:
-        return block.timer.ratio_band[1]
+        return block.timer.ratio_band[1] * v
     if block.kind == "relaxation" and block.gate is not None:
-        return block.gate.rising[2]
+        return block.gate.rising[2] * v
+    if block.kind == "delay":
+        win = block.window("threshold")
+        if win is None:
+            return None
+        return win.high * v if win.kind == "ratio" else win.high
     return None
+
+
+def _input_current(block: Block, design: Design) -> tuple[float, bool]:
+    """The watching logic input's own current in the node's drain, A, and whether assumed.
+
+    An RC delay counts its input's bound only when the spec states no ``leakage``
+    (a stated one replaces it), and that bound is then assumed (the gate class's
+    or the usual CMOS one); a relaxation oscillator's gate input always counts
+    (:func:`~timespec.families.logicinput.node_leakage_band`).  Zero for a timer.
+    """
+    if block.kind not in ("delay", "relaxation") or not any(p.ref == "C" for p in design.parts):
+        return 0.0, False
+    if block.kind == "delay" and block.number("leakage") is not None:
+        return 0.0, False
+    band = node_leakage_band(block, design, block.gate, add_stated=block.kind == "relaxation")
+    return band.input_bound, band.assumed is not None
+
+
+def _assumed_hint(block: Block, design: Design) -> str:
+    """What lowers an assumed input current, as a clause to end a drain sentence."""
+    amps, assumed = _input_current(block, design)
+    if not (assumed and amps > 0):
+        return ""
+    return (
+        f"; the {format_quantity(amps, 'current')} input current is an assumed bound: state "
+        "`leakage` with your input's datasheet bound to lower it"
+    )
+
+
+def _drain_pieces(block: Block, design: Design, by_name: Mapping[str, Factor]) -> list[str]:
+    """The drain at the timing node, piece by piece, in words."""
+    cap = next((p for p in design.parts if p.kind == "capacitance"), None)
+    stated = block.number("leakage") or 0.0
+    own = capacitor_leakage(block, cap) if cap is not None else 0.0
+    i_input, assumed = _input_current(block, design)
+    pieces = []
+    if "timer.ith" in by_name:
+        pieces.append(f"threshold current {format_quantity(by_name['timer.ith'].high, 'current')}")
+    if i_input > 0:
+        amps = format_quantity(i_input, "current")
+        pieces.append(f"assumed input current {amps}" if assumed else f"input current {amps}")
+    if own > 0:
+        pieces.append(f"capacitor leakage {format_quantity(own, 'current')}")
+    if stated > 0:
+        pieces.append(f"stated leakage {format_quantity(stated, 'current')}")
+    if (
+        not (own > 0 or stated > 0 or i_input > 0)
+        and "leak" in by_name
+        and by_name["leak"].high > 0
+    ):
+        pieces.append(f"node leakage {format_quantity(by_name['leak'].high, 'current')}")
+    return pieces
 
 
 def _drain_causes(
@@ -381,26 +444,15 @@ def _drain_causes(
     if not drains:
         return []
     path = _charge_resistance(block, design)
-    fraction = _threshold_fraction(block)
-    if path is None or fraction is None:
+    v_th = _threshold_volts(block)
+    if path is None or v_th is None:
         return []
     r, parts = path
     v = block.conditions.supply.low
-    v_th = fraction * v
     i_charge = (v - v_th) / r
     i_drain = math.fsum(f.high for f in drains)
-    cap = next((p for p in design.parts if p.kind == "capacitance"), None)
-    stated = block.number("leakage") or 0.0
-    own = capacitor_leakage(block, cap) if cap is not None else 0.0
-    pieces = []
-    if "timer.ith" in by_name:
-        pieces.append(f"threshold current {format_quantity(by_name['timer.ith'].high, 'current')}")
-    if own > 0:
-        pieces.append(f"capacitor leakage {format_quantity(own, 'current')}")
-    if stated > 0:
-        pieces.append(f"stated leakage {format_quantity(stated, 'current')}")
-    if not (own > 0 or stated > 0) and "leak" in by_name and by_name["leak"].high > 0:
-        pieces.append(f"node leakage {format_quantity(by_name['leak'].high, 'current')}")
+    pieces = _drain_pieces(block, design, by_name)
+    hint = _assumed_hint(block, design)
     drained = (
         f"{format_quantity(i_drain, 'current')} ({', '.join(pieces)})"
         if pieces
@@ -418,7 +470,7 @@ def _drain_causes(
                 "drain-stalls",
                 f"the timing node cannot reach its threshold: the drain of {drained} exceeds "
                 f"{charge}; use a smaller R with a larger C, or a capacitor that leaks less "
-                "(film instead of electrolytic)",
+                f"(film instead of electrolytic){hint}",
                 f"the {format_quantity(i_drain, 'current')} drain at the timing node exceeds the "
                 f"{format_quantity(i_charge, 'current')} charge current left at the threshold",
             )
@@ -438,7 +490,7 @@ def _drain_causes(
             f"leakage moves the {out.label or out.name} by about ±{_pct(moved)} against a "
             f"±{_pct(room)} window: the drain of {drained} is "
             f"{i_drain / i_charge * 100:.3g} % of {charge}; use a smaller R with a larger C, "
-            "or a capacitor that leaks less",
+            f"or a capacitor that leaks less{hint}",
             f"the {format_quantity(i_drain, 'current')} drain moves the timing by about "
             f"±{_pct(moved)}",
         )
