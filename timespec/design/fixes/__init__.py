@@ -21,6 +21,9 @@ Candidate changes
   new dielectric is commonly made in;
 * ``resistor-range`` / ``capacitor-range``: a decade more range when no candidate
   could be formed at all;
+* ``timer-class``: another 555-type timer class that takes the whole supply (for
+  one-shots and astables), with its built-in resistor range when the block uses the
+  built-in one (10 MΩ for ``cmos``, see :func:`timespec.model.builtin_resistor_high`);
 * combinations of two or three of the above (their costs add);
 * ``trimmer``: for one-resistor R-C blocks, a fixed resistor plus a trimmer
   whose range covers the worst-case spread of everything else, computed from the
@@ -41,6 +44,9 @@ The modules
 * :mod:`~timespec.design.fixes.trimmer`: a fixed resistor plus a trimmer, alone or
   with one part change;
 * :mod:`~timespec.design.fixes.requirement`: a narrower ambient range;
+* :mod:`~timespec.design.fixes.predict`: the quick bound that skips a re-solve
+  whose spread alone (the closest design re-graded, one worst case) is wider than
+  the window, and what failed re-solves settle;
 * :mod:`~timespec.design.fixes.search`: :func:`suggest_fixes`, which tries them all.
 """
 

@@ -8,7 +8,7 @@ applied together (never two touching the same fields), cheapest first.
 
 The kinds of change made here (``values``, ``finer-series``, ``pairs``,
 ``resistor-tolerance``, ``capacitor-tolerance``, ``dielectric``,
-``resistor-range``, ``capacitor-range``) are listed with their figures in
+``resistor-range``, ``capacitor-range``, ``timer-class``) are listed with their figures in
 :mod:`timespec.design.fixes`; their costs are those of
 :data:`timespec.design.fixes.fix.COSTS`.
 """
@@ -21,10 +21,11 @@ from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 
 from timespec.design.fixes.fix import COSTS, percent
-from timespec.model import Block, CapacitorPolicy, PinnedPart, ResistorPolicy
+from timespec.model import Block, CapacitorPolicy, PinnedPart, ResistorPolicy, builtin_resistor_high
 from timespec.numbers import format_part_value
 from timespec.parts import dielectrics
 from timespec.parts import series as eseries
+from timespec.parts.devices import TIMER_CLASSES, TimerClass
 
 __all__ = ["Change", "Edit", "apply_changes", "combinations", "design_changes"]
 
@@ -278,6 +279,53 @@ def _range_changes(block: Block) -> list[Change]:
     ]
 
 
+# Block kinds built around a 555-type timer, whose class a fix may change.
+_TIMER_KINDS = frozenset({"oneshot", "astable"})
+
+
+def _set_timer(new: TimerClass) -> Edit:
+    """An edit to another timer class (its built-in resistor top with it).
+
+    The resistor top follows the class only while the block's top is the built-in
+    one of its current class (checked when the edit is applied, so a widened range
+    from another change is kept).
+    """
+
+    def edit(block: Block) -> Block:
+        supply_low = block.conditions.supply.low
+        rp = block.resistors
+        if rp.high == builtin_resistor_high(block.timer, supply_low):
+            rp = dataclasses.replace(rp, high=builtin_resistor_high(new, supply_low))
+        return dataclasses.replace(block, timer=new, resistors=rp)
+
+    return edit
+
+
+def _timer_changes(block: Block) -> list[Change]:
+    """The other timer classes that take the block's whole supply range."""
+    old = block.timer
+    if block.kind not in _TIMER_KINDS or old is None:
+        return []
+    supply = block.conditions.supply
+    out: list[Change] = []
+    for new in TIMER_CLASSES.values():
+        # the same fit test as the speed causes (timespec.design.causes)
+        if new.name == old.name or not (
+            new.supply_min <= supply.low and supply.high <= new.supply_max
+        ):
+            continue
+        out.append(
+            Change(
+                "timer-class",
+                f"the {new.name} timer class instead of {old.name} ('timer {new.name}')",
+                COSTS["timer-class"],
+                _set_timer(new),
+                "timer",
+            )
+        )
+    return out
+
+
 def design_changes(block: Block, no_design: bool) -> list[Change]:
     """Every single change of the design worth trying for a block.
 
@@ -293,7 +341,8 @@ def design_changes(block: Block, no_design: bool) -> list[Change]:
     -------
     list of Change
         New values (when parts are pinned), tighter resistors, finer series and
-        pairs, tighter or steadier capacitors, and, when ``no_design``, a decade
+        pairs, tighter or steadier capacitors, another timer class that takes the
+        whole supply range (one-shot and astable), and, when ``no_design``, a decade
         more range of each part.
     """
     out: list[Change] = []
@@ -307,7 +356,7 @@ def design_changes(block: Block, no_design: bool) -> list[Change]:
                 "values",
             )
         )
-    out += _resistor_changes(block) + _capacitor_changes(block)
+    out += _resistor_changes(block) + _capacitor_changes(block) + _timer_changes(block)
     if no_design:
         out += _range_changes(block)
     return out

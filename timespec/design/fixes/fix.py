@@ -11,15 +11,17 @@ A small integer, an ordinal estimate of what a change adds to the bill of materi
 and to production (common practice, not a price list): finer series 1 per step; a
 decade more range 1; pairs 2 (a second part where needed); a tighter resistor grade
 2 per step; a tighter capacitor grade 3 per step; C0G 3, film 4 (larger, dearer
-parts); new values for a pinned design 0; a trimmer 6 (a part plus an adjustment
-step in production); a narrower ambient range 50 (not a design change at all).
+parts); another timer class 4 (a different part, often dearer, on the same
+footprint: dearer than a grade, cheaper than a trimmer); new values for a pinned
+design 0; a trimmer 6 (a part plus an adjustment step in production); a narrower
+ambient range 50 (not a design change at all).
 Combinations add their costs.  Ties are broken by the remaining margin (more first).
 """
 
 from __future__ import annotations
 
 import math
-from collections.abc import Iterable, Mapping
+from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
 from timespec.design.result import BlockResult, Candidate
@@ -30,6 +32,9 @@ from timespec.parts.part import Part
 __all__ = [
     "COSTS",
     "Fix",
+    "design_text",
+    "fix_sentence",
+    "join_changes",
     "parts_text",
     "percent",
     "relative_margin",
@@ -48,6 +53,7 @@ COSTS: Mapping[str, int] = {
     "resistor-tolerance": 2,
     "capacitor-tolerance": 3,
     "dielectric": 3,
+    "timer-class": 4,
     "trimmer": 6,
     "ambient": 50,
 }
@@ -64,7 +70,7 @@ class Fix:
     kind
         ``"values"``, ``"finer-series"``, ``"pairs"``, ``"resistor-tolerance"``,
         ``"capacitor-tolerance"``, ``"dielectric"``, ``"resistor-range"``,
-        ``"capacitor-range"``, ``"trimmer"`` or ``"ambient"``; combinations join
+        ``"capacitor-range"``, ``"timer-class"``, ``"trimmer"`` or ``"ambient"``; combinations join
         kinds with ``"+"``.
     cost
         Ordinal cost (see :data:`COSTS`); smaller is cheaper.
@@ -203,6 +209,69 @@ def parts_text(parts: Iterable[Part]) -> str:
         extra = p.dielectric or (f"{p.tempco_ppm:g} ppm/K" if p.tempco_ppm is not None else "")
         out.append(f"{p.ref} = {value} {grade} {extra}".rstrip())
     return ", ".join(out)
+
+
+def join_changes(texts: Sequence[str]) -> str:
+    """Change texts joined as one sentence part: ``"a"``, ``"a and b"``, ``"a, b and c"``.
+
+    Parameters
+    ----------
+    texts
+        The sentence parts of the changes, in order.
+
+    Returns
+    -------
+    str
+        The joined text (empty for no changes).
+    """
+    if len(texts) <= 1:
+        return "".join(texts)
+    return f"{', '.join(texts[:-1])} and {texts[-1]}"
+
+
+def design_text(block: Block, cand: Candidate) -> str:
+    """A sentence part naming a design: its circuit variant (astable) and its parts.
+
+    Parameters
+    ----------
+    block
+        The block the candidate was solved for.
+    cand
+        A solved candidate design.
+
+    Returns
+    -------
+    str
+        ``"<variant> circuit with <parts>"`` for an astable, else ``"<parts>"``
+        (see :func:`parts_text`).
+    """
+    parts = parts_text(cand.design.parts)
+    if block.kind == "astable" and cand.design.variant:
+        return f"{cand.design.variant} circuit with {parts}"
+    return parts
+
+
+def fix_sentence(block: Block, changes: Sequence[str], cand: Candidate) -> str:
+    """One sentence for a fix: the changes, the re-solved design and its windows.
+
+    Parameters
+    ----------
+    block
+        The modified block.
+    changes
+        The sentence part of each change made (see
+        :attr:`timespec.design.fixes.changes.Change.text`).
+    cand
+        The re-solved best design of ``block``.
+
+    Returns
+    -------
+    str
+        ``"Use <changes>: <design> gives <windows>."``, e.g. ``"Use 1 % capacitors
+        instead of 5 % and pairs: classic circuit with RA = …, RB = …, C = … gives
+        frequency … inside …."``
+    """
+    return f"Use {join_changes(changes)}: {design_text(block, cand)} gives {window_text(cand)}."
 
 
 def percent(t: float) -> str:

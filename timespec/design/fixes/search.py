@@ -3,7 +3,9 @@
 :func:`suggest_fixes` combines the part and policy changes of
 :mod:`~timespec.design.fixes.changes` up to three at a time, re-solves every
 modified block with :func:`timespec.design.solver.solve_block` within a fixed
-budget, skips combinations a cheaper working one already covers, then adds the
+budget, skips combinations a cheaper working one already covers and those whose
+spread alone surely exceeds the window (:mod:`~timespec.design.fixes.predict`,
+one worst case of the closest design re-graded instead of a re-solve), then adds the
 trimmer of :mod:`~timespec.design.fixes.trimmer` and, when too few design changes
 work, the narrower ambient range of :mod:`~timespec.design.fixes.requirement`.
 """
@@ -15,11 +17,11 @@ from collections.abc import Sequence
 from timespec.design.fixes.changes import Change, apply_changes, combinations, design_changes
 from timespec.design.fixes.fix import (
     Fix,
-    parts_text,
+    fix_sentence,
     relative_margin,
     required_windows,
-    window_text,
 )
+from timespec.design.fixes.predict import SearchMemo
 from timespec.design.fixes.requirement import ambient_fix
 from timespec.design.fixes.trimmer import trim_fix, trim_with_change
 from timespec.design.result import BlockResult
@@ -34,10 +36,8 @@ _BUDGET = 60
 
 def _fix_from(block: Block, combo: Sequence[Change], res: BlockResult) -> Fix:
     assert res.best is not None
-    change = "; ".join(c.text for c in combo)
-    what = f"Use {change}: {parts_text(res.best.design.parts)} gives {window_text(res.best)}."
     return Fix(
-        what=what,
+        what=fix_sentence(block, [c.text for c in combo], res.best),
         kind="+".join(c.kind for c in combo),
         cost=sum(c.cost for c in combo),
         block=block,
@@ -90,6 +90,7 @@ def suggest_fixes(block: Block, *, limit: int = 3, solved: BlockResult | None = 
     found: list[Fix] = []
     winners: list[dict[str, int]] = []  # slot -> cost of each working combination
     tried = 0
+    memo = SearchMemo()
     for combo in combinations(changes, 3):
         cost = sum(c.cost for c in combo)
         if len(found) >= limit and cost > found[limit - 1].cost:
@@ -99,13 +100,17 @@ def suggest_fixes(block: Block, *, limit: int = 3, solved: BlockResult | None = 
             continue  # dominated: a cheaper change in the same slots already works
         if tried >= _BUDGET:
             break
-        tried += 1
         modified = apply_changes(block, combo)
+        if memo.settled(modified) or memo.cannot_fit(modified, base.best):
+            continue  # its spread alone is wider than the window, or a re-solve showed it
+        tried += 1
         res = solve_block(modified)
         if res.verdict == "meets" and res.best is not None:
             winners.append(key)
             found.append(_fix_from(modified, combo, res))
             found.sort(key=lambda f: (f.cost, -f.margin))
+        else:
+            memo.learn(modified, res.best)
     # A trimmer and a narrower ambient range only take out spread: they are offered when
     # the closest design misses its window and breaks no design rule (a trigger longer
     # than the pulse, say, stays broken however R is trimmed).

@@ -20,13 +20,14 @@ import numpy as np
 
 from timespec.analysis import Factor, FloatArray, worst_case
 from timespec.design.fixes.changes import Change, apply_changes
-from timespec.design.fixes.fix import COSTS, Fix, percent
+from timespec.design.fixes.fix import COSTS, Fix, parts_text, percent
 from timespec.design.result import BlockResult
 from timespec.design.solver import solve_block
 from timespec.families import family
 from timespec.model import Block
 from timespec.numbers import format_interval, format_part_value
 from timespec.parts import series as eseries
+from timespec.parts.part import Part
 
 __all__ = ["TRIMMER_STEPS", "Trim", "trim_design", "trim_fix", "trim_with_change"]
 
@@ -217,6 +218,34 @@ def _after_trim(
     return (ex.low, ex.high)
 
 
+def _combination_text(block: Block, trim: Trim) -> str:
+    """``"a fixed 1M18 (E96 1 %) in series with a 500k trimmer (it surely covers …)"``."""
+    rp = block.resistors
+    return (
+        f"a fixed {format_part_value(trim.fixed, 'resistance')} "
+        f"({rp.series} {percent(rp.tolerance)}) in series with a "
+        f"{format_part_value(trim.trimmer, 'resistance')} trimmer (it surely covers "
+        f"{format_interval(trim.covered[0], trim.covered[1], 'resistance')}, "
+        f"{format_interval(trim.needed[0], trim.needed[1], 'resistance')} is needed)"
+    )
+
+
+def _kept_text(kept: Sequence[Part]) -> str:
+    """``" and C = 270n 2 % C0G"``: the design's other parts (empty when none)."""
+    return f" and {parts_text(kept)}" if kept else ""
+
+
+def _after_text(block: Block, trim: Trim) -> str:
+    """How the trim is set and the worst-case window left after it (ends the sentence)."""
+    w = block.requirements[0].window
+    lo, hi = trim.remaining
+    return (
+        f"adjusted at 25 °C and nominal supply to the target; temperature, supply and "
+        f"ageing still move it: {format_interval(lo, hi, w.kind)} worst case after trimming, "
+        f"inside {format_interval(w.low, w.high, w.kind)}."
+    )
+
+
 def trim_fix(block: Block, res: BlockResult) -> Fix | None:
     """A fixed resistor plus a trimmer as a fix, when what stays after trimming fits.
 
@@ -235,30 +264,28 @@ def trim_fix(block: Block, res: BlockResult) -> Fix | None:
         trimming leaves the requirement.
     """
     trim = trim_design(block, res)
-    if trim is None:
-        return None
+    return None if trim is None else _fix_of(block, res, trim, None)
+
+
+def _fix_of(block: Block, res: BlockResult, trim: Trim, change: Change | None) -> Fix | None:
+    """The trimmer fix (led by ``change`` when one comes with it), if its window fits."""
     req = block.requirements[0]
     w = req.window
     lo, hi = trim.remaining
     if not (w.low <= lo and hi <= w.high):
         return None
-    kind = w.kind
-    rp = block.resistors
-    what = (
-        f"Replace {trim.ref} by a fixed {format_part_value(trim.fixed, 'resistance')} "
-        f"({rp.series} {percent(rp.tolerance)}) in series with a "
-        f"{format_part_value(trim.trimmer, 'resistance')} trimmer (it surely covers "
-        f"{format_interval(trim.covered[0], trim.covered[1], 'resistance')}, "
-        f"{format_interval(trim.needed[0], trim.needed[1], 'resistance')} is needed), "
-        f"adjusted at 25 °C and nominal supply to the target; temperature, supply and "
-        f"ageing still move it: {format_interval(lo, hi, kind)} worst case after trimming, "
-        f"inside {format_interval(w.low, w.high, kind)}."
-    )
+    kept = [p for p in res.best.design.parts if p.ref != trim.ref] if res.best else []
+    combination = f"{_combination_text(block, trim)}{_kept_text(kept)}"
+    if change is None:
+        what = f"Replace {trim.ref} by {combination}, {_after_text(block, trim)}"
+    else:
+        lead = f"{change.text[0].upper()}{change.text[1:]}"
+        what = f"{lead}, with {trim.ref} made of {combination}, {_after_text(block, trim)}"
     width = w.high - w.low
     return Fix(
         what=what,
-        kind="trimmer",
-        cost=COSTS["trimmer"],
+        kind="trimmer" if change is None else f"{change.kind}+trimmer",
+        cost=COSTS["trimmer"] + (0 if change is None else change.cost),
         block=block,
         verdict="meets",
         windows={req.quantity: (lo, hi)},
@@ -286,8 +313,12 @@ def trim_with_change(block: Block, changes: Sequence[Change]) -> Fix | None:
     -------
     Fix or None
         A ``"<kind>+trimmer"`` fix carrying the changed block, its cost the sum of
-        both; ``None`` when no single change makes the trimmer enough.
+        both; ``None`` when no single change makes the trimmer enough, and at once
+        (nothing re-solved) when the block takes no trimmer (an astable, say, or
+        more than one requirement).
     """
+    if block.kind not in _TRIMMED_KINDS or len(block.requirements) != 1:
+        return None  # no trimmer suits the block (as trim_design decides): no re-solve
     for change in sorted(changes, key=lambda c: c.cost):
         if change.kind == "values":
             continue
@@ -296,12 +327,8 @@ def trim_with_change(block: Block, changes: Sequence[Change]) -> Fix | None:
             res = solve_block(modified)
         except ValueError:  # pragma: no cover - a change that the model rejects
             continue
-        fix = trim_fix(modified, res)
+        trim = trim_design(modified, res)
+        fix = None if trim is None else _fix_of(modified, res, trim, change)
         if fix is not None:
-            return dataclasses.replace(
-                fix,
-                what=f"{change.text[0].upper()}{change.text[1:]}, and: {fix.what}",
-                kind=f"{change.kind}+trimmer",
-                cost=fix.cost + change.cost,
-            )
+            return fix
     return None
