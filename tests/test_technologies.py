@@ -211,7 +211,7 @@ def test_the_steadiest_technology_that_meets_is_chosen(text: str) -> None:
 
 def test_the_choice_is_named_and_the_others_are_runners_up() -> None:
     result = solve_block(_block(_HOLD))
-    assert result.notes[0].startswith("capacitors: PP 2 % E24 (1 nF…1 µF), the steadiest of")
+    assert result.notes[0].startswith("capacitors: PP 2 % E24 (1 nF…2.2 µF), the steadiest of")
     assert "no value near the requirement in C0G 5 % E12 (100 pF…10 nF)" in result.notes[0]
     others = [a for a in result.alternatives if "capacitors" in a.rank_reason]
     assert {a.design.part("C").dielectric for a in others} == {"PET", "AL"}

@@ -224,13 +224,13 @@ def _check_policy(tolerance: float, low: float, high: float, ageing: float) -> N
 #: across them and prefers the steadier dielectric when several meet
 #: (:func:`timespec.parts.dielectrics.steadiness`).  Grades and value ranges are common
 #: practice, from memory: C0G chip ceramics in 5 % up to about 10 nF in small cases;
-#: polypropylene film in 2 % precision grades from 1 nF to about 1 µF; polyester film in
+#: polypropylene film in 2 % precision grades from 1 nF to about 2.2 µF; polyester film in
 #: 5 % above that to about 10 µF; aluminium electrolytics in 20 % and E6 values from
 #: 1 µF, with the class leakage rule 0.01·CV or 3 µA
 #: (:data:`timespec.families.capacitors.ELECTROLYTIC_LEAKAGE`).
 BUILTIN_CAPACITORS: tuple[CapacitorPolicy, ...] = (
     CapacitorPolicy(series="E12", tolerance=0.05, dielectric="C0G", low=100e-12, high=10e-9),
-    CapacitorPolicy(series="E24", tolerance=0.02, dielectric="PP", low=1e-9, high=1e-6),
+    CapacitorPolicy(series="E24", tolerance=0.02, dielectric="PP", low=1e-9, high=2.2e-6),
     CapacitorPolicy(series="E12", tolerance=0.05, dielectric="PET", low=1.2e-6, high=10e-6),
     CapacitorPolicy(series="E6", tolerance=0.20, dielectric="AL", low=1e-6, high=4.7e-3),
 )
