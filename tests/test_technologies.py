@@ -264,6 +264,7 @@ _ONESHOTS = [
     ("bipolar", "1 ms", "10%"),
     ("bipolar", "150 ms", "8%"),
     ("bipolar", "1 s", "10%"),
+    ("bipolar", "2 s", "10%"),
     ("bipolar", "10 s", "25%"),
     ("cmos", "100 us", "10%"),
     ("cmos", "10 s", "10%"),
