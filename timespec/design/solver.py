@@ -379,7 +379,7 @@ def solve_block(block: Block, *, shortlist: int = SHORTLIST) -> BlockResult:
         assumed = _assumed_technology(block, variants[0])
         return dataclasses.replace(result, notes=(assumed, *result.notes)) if assumed else result
     results = [_solve_technology(b, shortlist=shortlist) for b in variants]
-    return _choose_technology(block, results, shortlist)
+    return _choose_technology(block, results)
 
 
 def technology_blocks(block: Block) -> tuple[Block, ...]:
@@ -449,7 +449,7 @@ def technology_text(policy: CapacitorPolicy) -> str:
     return f"{policy.dielectric} {policy.tolerance * 100:g} % {policy.series} ({low}…{high})"
 
 
-def _choose_technology(block: Block, results: list[BlockResult], shortlist: int) -> BlockResult:
+def _choose_technology(block: Block, results: list[BlockResult]) -> BlockResult:
     """The result of the steadiest technology that meets, else of the closest design."""
     order = range(len(results))
     meeting = [i for i in order if results[i].verdict == "meets"]
@@ -457,8 +457,8 @@ def _choose_technology(block: Block, results: list[BlockResult], shortlist: int)
         pick = min(meeting, key=lambda i: (steadiness(results[i].block.capacitors.dielectric), i))
     else:
         tried = [i for i in order if results[i].best is not None]
-        if not tried:
-            return _solve_technology(block, shortlist=shortlist)
+        if not tried:  # the value-range cause across every technology offered
+            return _no_candidates(block, results[0].mode)
         pick = min(tried, key=lambda i: (rank_key(_best(results[i])), i))
     chosen = results[pick]
     best = _best(chosen)
@@ -495,6 +495,22 @@ def _choose_technology(block: Block, results: list[BlockResult], shortlist: int)
     )
 
 
+def _no_candidates(block: Block, mode: str) -> BlockResult:
+    """The result of a block no standard value comes near: the value-range cause."""
+    return BlockResult(
+        block=block,
+        verdict="infeasible",
+        mode=mode,
+        best=None,
+        notes=(
+            range_cause(block)
+            or "no standard value in the allowed ranges comes near the requirement; "
+            "widen the resistor or capacitor range",
+            *_condition_notes(block),
+        ),
+    )
+
+
 def _best(result: BlockResult) -> Candidate:
     assert result.best is not None
     return result.best
@@ -506,18 +522,7 @@ def _solve_technology(block: Block, *, shortlist: int = SHORTLIST) -> BlockResul
     designs = fam.candidates(block)
     mode = "checked" if designs and all(p.pinned for p in designs[0].parts) else "solved"
     if not designs:
-        return BlockResult(
-            block=block,
-            verdict="infeasible",
-            mode=mode,
-            best=None,
-            notes=(
-                range_cause(block)
-                or "no standard value in the allowed ranges comes near the requirement; "
-                "widen the resistor or capacitor range",
-                *_condition_notes(block),
-            ),
-        )
+        return _no_candidates(block, mode)
     chosen = _shortlist(block, fam, designs, shortlist)
     facs_of = {d: fam.factors(block, d) for d in chosen}
     known: dict[Design, dict[str, Extremes]] = {}

@@ -427,6 +427,22 @@ def _csv(rows: list[tuple[tuple[str, ...], ...]], headers: tuple[str, ...] = HEA
     return buf.getvalue()
 
 
+def _check_format(fmt: str) -> None:
+    if fmt not in ("markdown", "rest", "csv"):
+        raise UsageError(f"unknown table format {fmt!r}; use markdown, rest or csv")
+
+
+def _render(
+    rows: list[tuple[tuple[str, ...], ...]], fmt: str, title: str | None, headers: tuple[str, ...]
+) -> str:
+    """One table in one of the formats (checked by :func:`_check_format`)."""
+    if fmt == "markdown":
+        return _markdown(rows, headers)
+    if fmt == "rest":
+        return _rest(rows, title, headers)
+    return _csv(rows, headers)
+
+
 def render_table(
     result: Result,
     fmt: TableFormat,
@@ -469,14 +485,8 @@ def render_table(
     ----------
     RFC 4180, Common Format and MIME Type for Comma-Separated Values (CSV) Files.
     """
-    if fmt not in ("markdown", "rest", "csv"):
-        raise UsageError(f"unknown table format {fmt!r}; use markdown, rest or csv")
-    rows = table_cells(result, blocks)
-    if fmt == "markdown":
-        return _markdown(rows)
-    if fmt == "rest":
-        return _rest(rows, title)
-    return _csv(rows)
+    _check_format(fmt)
+    return _render(table_cells(result, blocks), fmt, title, HEADERS)
 
 
 def render_bom(
@@ -515,14 +525,9 @@ def render_bom(
     ----------
     RFC 4180 (CSV); IEEE 315 / ASME Y14.44 reference designation (designators).
     """
-    if fmt not in ("markdown", "rest", "csv"):
-        raise UsageError(f"unknown table format {fmt!r}; use markdown, rest or csv")
+    _check_format(fmt)
     body = bom_rows(result, blocks)
     if fmt == "csv":  # a spreadsheet or parts-list import reads an empty cell as "none"
         body = [tuple("" if cell == MISSING else cell for cell in row) for row in body]
     rows: list[tuple[tuple[str, ...], ...]] = [tuple((cell,) for cell in row) for row in body]
-    if fmt == "markdown":
-        return _markdown(rows, BOM_HEADERS)
-    if fmt == "rest":
-        return _rest(rows, title, BOM_HEADERS)
-    return _csv(rows, BOM_HEADERS)
+    return _render(rows, fmt, title, BOM_HEADERS)
