@@ -7,10 +7,11 @@ burn-in rack).
 from __future__ import annotations
 
 import math
+import sys
 
 import numpy as np
 import pytest
-from hypothesis import given, settings
+from hypothesis import example, given, settings
 from hypothesis import strategies as st
 
 import timespec
@@ -322,7 +323,14 @@ DECLARE_POLICIES = [
 
 
 def _same(a: float, b: float) -> bool:
-    return a == b or (math.isnan(a) and math.isnan(b))
+    # Equal to a few units in the last place: two corners that differ only in factors an
+    # output does not depend on (the feedback circuit's low-side output resistance for
+    # its high time) give the same value, but through a differently ordered
+    # floating-point evaluation (found by the lowest-dependency run: 2.4e-16 apart).
+    # A wrong monotonicity proof moves an extreme by far more.
+    if math.isnan(a) or math.isnan(b):
+        return math.isnan(a) and math.isnan(b)
+    return math.isclose(a, b, rel_tol=4 * sys.float_info.epsilon, abs_tol=0.0)
 
 
 def _check_declarations_exact(
@@ -388,6 +396,7 @@ def test_declared_monotone_factors_exact_diode(
 
 @settings(max_examples=6, deadline=None)
 @given(**_DECLARE_CASES)
+@example(policy=2, timer="cmos", ra=50503.38893508019, rb=1e3, share=0.0)  # electrolytic
 def test_declared_monotone_factors_exact_feedback(
     policy: int, timer: str, ra: float, rb: float, share: float
 ) -> None:
